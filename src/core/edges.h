@@ -1,0 +1,59 @@
+// benchtau: switching edges of the timer, from the output pin or, when only the
+// capacitor node was captured, from the sawtooth's turnarounds.
+#pragma once
+
+#include <cstddef>
+#include <span>
+#include <vector>
+
+#include "src/core/capture.h"
+#include "src/core/levels.h"
+
+namespace benchtau {
+
+// rising: the output goes high and the capacitor starts to charge.
+// falling: the output goes low and the discharge switch closes.
+enum class EdgeKind { rising, falling };
+
+struct Edge {
+  double t_s = 0.0;          // interpolated crossing (or turnaround) time
+  EdgeKind kind = EdgeKind::rising;
+  std::size_t index = 0;     // first sample after the edge
+};
+
+struct EdgeOptions {
+  // Hysteresis band, as a fraction of the swing either side of the midpoint:
+  // the signal must cross mid + h*swing to count as high, mid - h*swing as low.
+  double hysteresis = 0.2;
+  // A segment shorter than this fraction of the median segment of its kind is
+  // a glitch: it and the edge pair around it are removed.
+  double glitch_fraction = 0.05;
+};
+
+struct EdgeScan {
+  std::vector<Edge> edges;   // alternating kinds, in time order
+  TwoLevels levels;          // the levels the edges were found between
+  std::size_t glitches = 0;  // short pulses removed
+};
+
+// Edges of a two-level output signal. Crossing times are interpolated linearly
+// between the two samples either side of the midpoint. NaN samples break the
+// signal: no edge is interpolated across them.
+EdgeScan output_edges(const TimeBase& time, std::span<const double> out_V,
+                      const EdgeOptions& options = {});
+
+// Edges from a capacitor-node sawtooth: a falling edge at each maximum, a
+// rising edge at each minimum. Each turnaround time is where straight lines
+// fitted to the samples on either side intersect, which is far less noisy
+// than the extreme sample.
+EdgeScan sawtooth_edges(const TimeBase& time, std::span<const double> cap_V,
+                        const EdgeOptions& options = {});
+
+// The capacitor-node voltage at an edge: a straight line fitted to the samples
+// just before the edge (the segment that ends there), extrapolated to the edge
+// time. window is how many samples to fit; samples within guard of the edge
+// are skipped (they may already show the switching). NaN if too few samples.
+double turnaround_V(const TimeBase& time, std::span<const double> cap_V, const Edge& edge,
+                    std::size_t window, std::size_t guard);
+
+}  // namespace benchtau
