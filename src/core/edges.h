@@ -3,6 +3,7 @@
 #pragma once
 
 #include <cstddef>
+#include <limits>
 #include <span>
 #include <vector>
 
@@ -16,9 +17,11 @@ namespace benchtau {
 enum class EdgeKind { rising, falling };
 
 struct Edge {
-  double t_s = 0.0;          // interpolated crossing (or turnaround) time
+  double t_s = 0.0;  // interpolated crossing (or turnaround) time
   EdgeKind kind = EdgeKind::rising;
-  std::size_t index = 0;     // first sample after the edge
+  std::size_t index = 0;   // first sample after the edge
+  bool after_gap = false;  // missing samples lie between this edge and the one before
+  double cap_V = std::numeric_limits<double>::quiet_NaN();  // turnaround voltage, when known
 };
 
 struct EdgeOptions {
@@ -43,15 +46,15 @@ EdgeScan output_edges(const TimeBase& time, std::span<const double> out_V,
                       const EdgeOptions& options = {});
 
 // Edges from a capacitor-node sawtooth: a falling edge at each maximum, a
-// rising edge at each minimum. Each turnaround time is where straight lines
-// fitted to the samples on either side intersect, which is far less noisy
-// than the extreme sample.
+// rising edge at each minimum. Each turnaround time is where quadratics fitted
+// to the samples on either side intersect, which is far less noisy than the
+// extreme sample; Edge::cap_V is the voltage there.
 EdgeScan sawtooth_edges(const TimeBase& time, std::span<const double> cap_V,
                         const EdgeOptions& options = {});
 
-// The capacitor-node voltage at an edge: a straight line fitted to the samples
+// The capacitor-node voltage at an edge: a quadratic fitted to the samples
 // just before the edge (the segment that ends there), extrapolated to the edge
-// time. window is how many samples to fit; samples within guard of the edge
+// time. window is how many samples to fit; the guard samples nearest the edge
 // are skipped (they may already show the switching). NaN if too few samples.
 double turnaround_V(const TimeBase& time, std::span<const double> cap_V, const Edge& edge,
                     std::size_t window, std::size_t guard);

@@ -9,11 +9,11 @@ namespace benchtau {
 // Robust spread of a channel: percentiles read off a fine histogram, so one
 // spike or a NaN does not move them. NaN samples are skipped.
 struct ChannelSpread {
-  std::size_t finite = 0;    // samples that are numbers
-  double min_V = 0.0;        // raw extremes
+  std::size_t finite = 0;  // samples that are numbers
+  double min_V = 0.0;      // raw extremes
   double max_V = 0.0;
-  double p01_V = 0.0;        // 1st and 99th percentiles
-  double p99_V = 0.0;
+  double p_low_V = 0.0;  // 0.1th and 99.9th percentiles: the extremes less stray spikes
+  double p_high_V = 0.0;
   double median_V = 0.0;
   // Fraction of samples exactly equal to min_V (or max_V) that sit in runs of
   // at least three equal samples: the signature of an instrument's rail.

@@ -20,17 +20,17 @@ struct Cycle {
   double high_s = 0.0;
   double low_s = 0.0;
   double period_s = 0.0;
-  double duty = 0.0;         // high_s / period_s
-  double cap_max_V = 0.0;    // capacitor node at the end of the high phase (upper turnaround)
-  double cap_min_V = 0.0;    // capacitor node at the start of the cycle (lower turnaround)
-  double ctl_high_V = 0.0;   // control pin, mean over the high phase
-  double ctl_low_V = 0.0;    // control pin, mean over the low phase
-  bool startup = false;      // first charge from below the lower threshold after power-up
+  double duty = 0.0;        // high_s / period_s
+  double cap_max_V = 0.0;   // capacitor node at the end of the high phase (upper turnaround)
+  double cap_min_V = 0.0;   // capacitor node at the start of the cycle (lower turnaround)
+  double ctl_high_V = 0.0;  // control pin, mean over the high phase
+  double ctl_low_V = 0.0;   // control pin, mean over the low phase
+  bool startup = false;     // first charge from below the lower threshold after power-up
 };
 
 // Period drift over the record: a straight line fitted to period against time.
 struct Drift {
-  bool known = false;        // needs three or more steady cycles
+  bool known = false;  // needs three or more steady cycles
   double ppm_per_s = 0.0;
   double sigma_ppm_per_s = 0.0;
 };
@@ -39,10 +39,10 @@ struct Drift {
 struct Summary {
   std::size_t cycles = 0;
   Stat period_s, high_s, low_s, duty, cap_max_V, cap_min_V, ctl_V;
-  double frequency_Hz = 0.0;        // 1 / mean period
-  double jitter_c2c_s = 0.0;        // RMS of successive period differences
+  double frequency_Hz = 0.0;  // 1 / mean period
+  double jitter_c2c_s = 0.0;  // RMS of successive period differences
   Drift drift;
-  double out_low_V = 0.0;           // output levels, NaN when the output was not captured
+  double out_low_V = 0.0;  // output levels, NaN when the output was not captured
   double out_high_V = 0.0;
 };
 
@@ -51,8 +51,8 @@ struct MeasureOptions {
 };
 
 struct Measurement {
-  std::string edge_node;            // "out" or "cap": which node the edges came from
-  std::vector<Cycle> cycles;        // every whole cycle, start-up included (flagged)
+  std::string edge_node;      // "out" or "cap": which node the edges came from
+  std::vector<Cycle> cycles;  // every whole cycle, start-up included (flagged)
   Summary summary;
   Findings findings;
   double min_samples_per_segment = 0.0;

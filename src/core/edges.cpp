@@ -1,0 +1,296 @@
+// benchtau: edge extraction from the output pin and from the capacitor sawtooth.
+#include "src/core/edges.h"
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <optional>
+
+namespace benchtau {
+namespace {
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+// v(t) = a0 + a1 x + a2 x^2 with x = (t - t_ref) / scale; fitted by least squares.
+struct Quadratic {
+  double t_ref = 0.0, scale = 1.0;
+  std::array<double, 3> a{};
+  int degree = 2;
+
+  double at(double t) const {
+    const double x = (t - t_ref) / scale;
+    return a[0] + x * (a[1] + x * a[2]);
+  }
+};
+
+// Solves the (degree+1)-square normal equations by Gaussian elimination with
+// partial pivoting; the system is at most 3x3.
+std::optional<Quadratic> fit_poly(const TimeBase& time, std::span<const double> v,
+                                  std::size_t first, std::size_t last, double t_ref) {
+  const std::size_t n = last - first;
+  if (n < 2) return std::nullopt;
+  Quadratic q;
+  q.t_ref = t_ref;
+  q.degree = n >= 3 ? 2 : 1;
+  const int m = q.degree + 1;
+  double scale = 0.0;
+  for (std::size_t i = first; i < last; ++i) {
+    if (std::isnan(v[i])) return std::nullopt;
+    scale = std::max(scale, std::fabs(time.at(i) - t_ref));
+  }
+  q.scale = scale > 0.0 ? scale : 1.0;
+  std::array<std::array<double, 4>, 3> A{};
+  for (std::size_t i = first; i < last; ++i) {
+    const double x = (time.at(i) - t_ref) / q.scale;
+    const std::array<double, 3> p{1.0, x, x * x};
+    for (int r = 0; r < m; ++r) {
+      for (int c = 0; c < m; ++c) A[r][c] += p[r] * p[c];
+      A[r][3] += p[r] * v[i];
+    }
+  }
+  for (int col = 0; col < m; ++col) {
+    int pivot = col;
+    for (int r = col + 1; r < m; ++r)
+      if (std::fabs(A[r][col]) > std::fabs(A[pivot][col])) pivot = r;
+    if (std::fabs(A[pivot][col]) < 1e-300) return std::nullopt;
+    std::swap(A[col], A[pivot]);
+    for (int r = 0; r < m; ++r) {
+      if (r == col) continue;
+      const double f = A[r][col] / A[col][col];
+      for (int c = col; c < 4; ++c) A[r][c] -= f * A[col][c];
+    }
+  }
+  for (int r = 0; r < m; ++r) q.a[r] = A[r][3] / A[r][r];
+  return q;
+}
+
+// Where two curves fitted about the same t_ref meet, nearest t_guess within [t_lo, t_hi].
+std::optional<double> meeting_time(const Quadratic& left, const Quadratic& right, double t_guess,
+                                   double t_lo, double t_hi) {
+  // Coefficients in u = t - t_ref, undoing each fit's own scaling.
+  auto in_u = [](const Quadratic& q) {
+    return std::array<double, 3>{q.a[0], q.a[1] / q.scale, q.a[2] / (q.scale * q.scale)};
+  };
+  const auto l = in_u(left), r = in_u(right);
+  const double d0 = l[0] - r[0], d1 = l[1] - r[1], d2 = l[2] - r[2];
+  std::array<double, 2> roots{kNaN, kNaN};
+  const double span = t_hi - t_lo;
+  if (std::fabs(d2) * span < 1e-9 * std::fabs(d1)) {
+    if (d1 != 0.0) roots[0] = -d0 / d1;
+  } else {
+    const double disc = d1 * d1 - 4.0 * d2 * d0;
+    if (disc < 0.0) return std::nullopt;
+    // The numerically stable pair of quadratic roots.
+    const double qq = -0.5 * (d1 + std::copysign(std::sqrt(disc), d1));
+    if (qq != 0.0) {
+      roots[0] = qq / d2;
+      roots[1] = d0 / qq;
+    }
+  }
+  std::optional<double> best;
+  for (double u : roots) {
+    if (std::isnan(u)) continue;
+    const double t = left.t_ref + u;
+    if (t < t_lo || t > t_hi) continue;
+    if (!best || std::fabs(t - t_guess) < std::fabs(*best - t_guess)) best = t;
+  }
+  return best;
+}
+
+std::size_t fit_window(std::size_t segment_samples) {
+  return std::clamp<std::size_t>(segment_samples / 4, 3, 256);
+}
+
+// Removes short segments (with the edge pair that bounds them) relative to the
+// median segment of the same kind.
+std::vector<Edge> drop_glitches(const std::vector<Edge>& edges, double fraction,
+                                std::size_t& glitches) {
+  if (edges.size() < 3) return edges;
+  std::vector<double> high, low;
+  for (std::size_t k = 0; k + 1 < edges.size(); ++k) {
+    if (edges[k + 1].after_gap) continue;
+    const double d = edges[k + 1].t_s - edges[k].t_s;
+    (edges[k].kind == EdgeKind::rising ? high : low).push_back(d);
+  }
+  auto median = [](std::vector<double>& v) {
+    if (v.empty()) return 0.0;
+    std::nth_element(v.begin(), v.begin() + static_cast<std::ptrdiff_t>(v.size() / 2), v.end());
+    return v[v.size() / 2];
+  };
+  const double high_med = median(high), low_med = median(low);
+  std::vector<Edge> kept;
+  kept.reserve(edges.size());
+  bool pending_gap = false;
+  std::size_t k = 0;
+  while (k < edges.size()) {
+    if (k + 1 < edges.size() && !edges[k + 1].after_gap) {
+      const double d = edges[k + 1].t_s - edges[k].t_s;
+      const double med = edges[k].kind == EdgeKind::rising ? high_med : low_med;
+      if (d < fraction * med) {
+        ++glitches;
+        pending_gap = pending_gap || edges[k].after_gap;
+        k += 2;
+        continue;
+      }
+    }
+    Edge e = edges[k];
+    e.after_gap = e.after_gap || pending_gap;
+    pending_gap = false;
+    kept.push_back(e);
+    ++k;
+  }
+  return kept;
+}
+
+}  // namespace
+
+EdgeScan output_edges(const TimeBase& time, std::span<const double> out_V,
+                      const EdgeOptions& options) {
+  EdgeScan scan;
+  const ChannelSpread spread = channel_spread(out_V);
+  scan.levels = two_levels(out_V, spread);
+  const double swing = scan.levels.swing_V();
+  if (!(swing > 0.0)) return scan;
+  const double mid = scan.levels.low_V + 0.5 * swing;
+  const double up = mid + options.hysteresis * swing;
+  const double down = mid - options.hysteresis * swing;
+
+  enum class State { unknown, low, high } state = State::unknown;
+  bool gap = false;
+  std::vector<Edge> edges;
+  for (std::size_t i = 0; i < out_V.size(); ++i) {
+    const double v = out_V[i];
+    if (std::isnan(v)) {
+      state = State::unknown;
+      gap = !edges.empty();
+      continue;
+    }
+    if (state == State::unknown) {
+      if (v >= up) state = State::high;
+      if (v <= down) state = State::low;
+      continue;
+    }
+    const bool rising = state == State::low && v >= up;
+    const bool falling = state == State::high && v <= down;
+    if (!rising && !falling) continue;
+    // Walk back to the pair of samples that straddles the midpoint; the walk
+    // never leaves the hysteresis band, so the whole scan stays linear.
+    std::size_t j = i;
+    while (j > 0 && !std::isnan(out_V[j - 1]) && (rising ? out_V[j - 1] > mid : out_V[j - 1] < mid))
+      --j;
+    double t = time.at(j);
+    if (j > 0 && !std::isnan(out_V[j - 1])) {
+      const double v0 = out_V[j - 1], v1 = out_V[j];
+      const double frac = (mid - v0) / (v1 - v0);
+      t = time.at(j - 1) + frac * (time.at(j) - time.at(j - 1));
+    }
+    edges.push_back({t, rising ? EdgeKind::rising : EdgeKind::falling, j, gap, kNaN});
+    gap = false;
+    state = rising ? State::high : State::low;
+  }
+  scan.edges = drop_glitches(edges, options.glitch_fraction, scan.glitches);
+  return scan;
+}
+
+EdgeScan sawtooth_edges(const TimeBase& time, std::span<const double> cap_V,
+                        const EdgeOptions& options) {
+  EdgeScan scan;
+  const ChannelSpread spread = channel_spread(cap_V);
+  scan.levels.low_V = spread.p_low_V;
+  scan.levels.high_V = spread.p_high_V;
+  scan.levels.mid_band_fraction = 0.5;
+  const double swing = spread.p_high_V - spread.p_low_V;
+  if (!(swing > 0.0)) return scan;
+  const double drop = 2.0 * options.hysteresis * swing;
+
+  // First pass: the extreme sample of each turnaround, found with hysteresis.
+  struct Turn {
+    std::size_t i;
+    EdgeKind kind;
+    bool after_gap;
+  };
+  std::vector<Turn> turns;
+  enum class State { unknown, rising, falling } state = State::unknown;
+  std::size_t start = 0, hi_i = 0, lo_i = 0;
+  bool gap = false;
+  for (std::size_t i = 0; i < cap_V.size(); ++i) {
+    const double v = cap_V[i];
+    if (std::isnan(v)) {
+      state = State::unknown;
+      start = i + 1;
+      gap = !turns.empty();
+      continue;
+    }
+    if (state == State::unknown && i == start) hi_i = lo_i = i;
+    if (v > cap_V[hi_i]) hi_i = i;
+    if (v < cap_V[lo_i]) lo_i = i;
+    if (state != State::falling && v < cap_V[hi_i] - drop) {
+      // A maximum at the very start of a run is where the record began, not a turnaround.
+      if (hi_i > start) turns.push_back({hi_i, EdgeKind::falling, gap});
+      gap = gap && hi_i == start;
+      state = State::falling;
+      lo_i = i;
+    } else if (state != State::rising && v > cap_V[lo_i] + drop) {
+      if (lo_i > start) turns.push_back({lo_i, EdgeKind::rising, gap});
+      gap = gap && lo_i == start;
+      state = State::rising;
+      hi_i = i;
+    }
+  }
+
+  // Second pass: refine each turnaround where the curves on either side meet.
+  std::vector<Edge> edges;
+  edges.reserve(turns.size());
+  for (std::size_t k = 0; k < turns.size(); ++k) {
+    const std::size_t m = turns[k].i;
+    const std::size_t prev = k > 0 ? turns[k - 1].i : 0;
+    const std::size_t next = k + 1 < turns.size() ? turns[k + 1].i : cap_V.size() - 1;
+    const std::size_t guard = (m - prev >= 40 && next - m >= 40) ? 2 : 1;
+    const double t_m = time.at(m);
+    std::optional<Quadratic> left, right;
+    if (m >= prev + guard + 2) {
+      const std::size_t w = std::min(fit_window(m - prev), m - prev - guard);
+      left = fit_poly(time, cap_V, m + 1 - guard - w, m + 1 - guard, t_m);
+    }
+    if (next >= m + guard + 2) {
+      const std::size_t w = std::min(fit_window(next - m), next - m - guard);
+      right = fit_poly(time, cap_V, m + guard, m + guard + w, t_m);
+    }
+    Edge e{t_m, turns[k].kind, m + 1, turns[k].after_gap, cap_V[m]};
+    const double t_lo = time.at(m > 2 ? m - 2 : 0);
+    const double t_hi = time.at(std::min(m + 2, cap_V.size() - 1));
+    if (left && right) {
+      if (auto t = meeting_time(*left, *right, t_m, t_lo, t_hi)) {
+        e.t_s = *t;
+        e.cap_V = left->at(*t);
+      } else {
+        e.cap_V = left->at(t_m);
+      }
+    } else if (left) {
+      // The far side is too short to fit (a near-instant discharge): the turn
+      // lies within the sample interval after the extreme sample.
+      const double t_next = time.at(std::min(m + 1, cap_V.size() - 1));
+      e.t_s = 0.5 * (t_m + t_next);
+      e.cap_V = left->at(e.t_s);
+    } else if (right) {
+      const double t_prev = time.at(m > 0 ? m - 1 : 0);
+      e.t_s = 0.5 * (t_prev + t_m);
+      e.cap_V = right->at(e.t_s);
+    }
+    edges.push_back(e);
+  }
+  scan.edges = drop_glitches(edges, options.glitch_fraction, scan.glitches);
+  return scan;
+}
+
+double turnaround_V(const TimeBase& time, std::span<const double> cap_V, const Edge& edge,
+                    std::size_t window, std::size_t guard) {
+  if (edge.index < guard + 3) return kNaN;
+  const std::size_t last = std::min(edge.index - guard, cap_V.size());
+  const std::size_t first = last > window ? last - window : 0;
+  if (last - first < 3) return kNaN;
+  const auto q = fit_poly(time, cap_V, first, last, edge.t_s);
+  return q ? q->at(edge.t_s) : kNaN;
+}
+
+}  // namespace benchtau

@@ -1,0 +1,129 @@
+// benchtau: channel spread and two-level detection from histograms.
+#include "src/core/levels.h"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <vector>
+
+namespace benchtau {
+namespace {
+
+// Fine enough that an 8-bit capture's codes land in distinct bins, small
+// enough to stay in cache.
+constexpr std::size_t kBins = 8192;
+
+// Counts over [lo, hi] in kBins bins; quantiles interpolate inside a bin.
+class Histogram {
+ public:
+  Histogram(double lo, double hi) : lo_(lo), hi_(hi), counts_(kBins, 0) {
+    width_ = (hi_ > lo_) ? (hi_ - lo_) / static_cast<double>(kBins) : 1.0;
+  }
+
+  void add(double v) {
+    auto bin = static_cast<std::size_t>((v - lo_) / width_);
+    counts_[std::min(bin, kBins - 1)]++;
+    ++total_;
+  }
+
+  std::size_t total() const { return total_; }
+
+  // Value below which a fraction q of the counted samples lie.
+  double quantile(double q) const {
+    if (total_ == 0) return std::numeric_limits<double>::quiet_NaN();
+    if (hi_ <= lo_) return lo_;
+    const double target = q * static_cast<double>(total_);
+    double seen = 0.0;
+    for (std::size_t b = 0; b < kBins; ++b) {
+      const auto c = static_cast<double>(counts_[b]);
+      if (seen + c >= target && c > 0) {
+        const double within = (target - seen) / c;
+        return lo_ + (static_cast<double>(b) + within) * width_;
+      }
+      seen += c;
+    }
+    return hi_;
+  }
+
+ private:
+  double lo_, hi_, width_;
+  std::vector<std::size_t> counts_;
+  std::size_t total_ = 0;
+};
+
+// Share of samples equal to level that sit in runs of three or more.
+double flat_run_fraction(std::span<const double> values, double level, std::size_t finite) {
+  if (finite == 0) return 0.0;
+  std::size_t in_runs = 0, run = 0;
+  for (double v : values) {
+    if (v == level) {
+      ++run;
+    } else {
+      if (run >= 3) in_runs += run;
+      run = 0;
+    }
+  }
+  if (run >= 3) in_runs += run;
+  return static_cast<double>(in_runs) / static_cast<double>(finite);
+}
+
+}  // namespace
+
+ChannelSpread channel_spread(std::span<const double> values) {
+  ChannelSpread s;
+  double lo = std::numeric_limits<double>::infinity();
+  double hi = -lo;
+  for (double v : values) {
+    if (std::isnan(v)) continue;
+    ++s.finite;
+    lo = std::min(lo, v);
+    hi = std::max(hi, v);
+  }
+  if (s.finite == 0) {
+    const double nan = std::numeric_limits<double>::quiet_NaN();
+    s.min_V = s.max_V = s.p_low_V = s.p_high_V = s.median_V = nan;
+    return s;
+  }
+  s.min_V = lo;
+  s.max_V = hi;
+  Histogram h(lo, hi);
+  for (double v : values)
+    if (!std::isnan(v)) h.add(v);
+  s.p_low_V = h.quantile(0.001);
+  s.p_high_V = h.quantile(0.999);
+  s.median_V = h.quantile(0.5);
+  if (hi > lo) {
+    s.at_min_fraction = flat_run_fraction(values, lo, s.finite);
+    s.at_max_fraction = flat_run_fraction(values, hi, s.finite);
+  }
+  return s;
+}
+
+TwoLevels two_levels(std::span<const double> values, const ChannelSpread& spread) {
+  TwoLevels t;
+  if (spread.finite == 0 || !(spread.p_high_V > spread.p_low_V)) {
+    t.low_V = t.high_V = spread.median_V;
+    return t;
+  }
+  const double mid = 0.5 * (spread.p_low_V + spread.p_high_V);
+  Histogram below(spread.min_V, mid), above(mid, spread.max_V);
+  for (double v : values) {
+    if (std::isnan(v)) continue;
+    (v < mid ? below : above).add(v);
+  }
+  t.low_V = below.quantile(0.5);
+  t.high_V = above.quantile(0.5);
+  if (below.total() == 0 || above.total() == 0) {
+    t.low_V = t.high_V = spread.median_V;
+    return t;
+  }
+  const double band_lo = t.low_V + 0.25 * t.swing_V();
+  const double band_hi = t.low_V + 0.75 * t.swing_V();
+  std::size_t in_band = 0;
+  for (double v : values)
+    if (v > band_lo && v < band_hi) ++in_band;
+  t.mid_band_fraction = static_cast<double>(in_band) / static_cast<double>(spread.finite);
+  return t;
+}
+
+}  // namespace benchtau

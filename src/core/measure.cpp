@@ -1,0 +1,326 @@
+// benchtau: from edges to cycles, summary and findings.
+#include "src/core/measure.h"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+
+#include "src/core/engineering.h"
+#include "src/core/input_error.h"
+#include "src/core/levels.h"
+
+namespace benchtau {
+namespace {
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+// An output that moves less than this is not switching: even a CMOS part on a
+// 1.5 V supply swings over ten times more (common practice).
+constexpr double kFlatOutput_V = 0.1;
+constexpr double kFlatCap_V = 0.05;
+// An output sitting below this is low; a 555's output low is a few tenths of a
+// volt at bench loads (common practice).
+constexpr double kLowLevel_V = 0.8;
+// Segments shorter than this many samples put the edge times at risk.
+constexpr double kFewSamples = 10.0;
+// A share of samples flat at a channel's extreme that means the instrument clipped.
+constexpr double kClippedFraction = 0.002;
+
+void add(Findings& f, std::string code, Severity s, std::string message) {
+  f.push_back({std::move(code), s, std::move(message)});
+}
+
+double mean_between(const TimeBase& time, std::span<const double> v, double t0, double t1) {
+  // Leave out the first and last tenth: the control pin kicks at each edge.
+  const double margin = 0.1 * (t1 - t0);
+  double sum = 0.0;
+  std::size_t n = 0;
+  // Edges are in time order; a binary search keeps long records fast.
+  std::size_t lo = 0, hi = v.size();
+  while (lo < hi) {
+    const std::size_t mid = (lo + hi) / 2;
+    if (time.at(mid) < t0 + margin)
+      lo = mid + 1;
+    else
+      hi = mid;
+  }
+  for (std::size_t i = lo; i < v.size() && time.at(i) <= t1 - margin; ++i) {
+    if (std::isnan(v[i])) continue;
+    sum += v[i];
+    ++n;
+  }
+  return n ? sum / static_cast<double>(n) : kNaN;
+}
+
+double median_of(std::vector<double> v) {
+  std::erase_if(v, [](double x) { return std::isnan(x); });
+  if (v.empty()) return kNaN;
+  std::nth_element(v.begin(), v.begin() + static_cast<std::ptrdiff_t>(v.size() / 2), v.end());
+  return v[v.size() / 2];
+}
+
+std::vector<Cycle> cycles_from(const std::vector<Edge>& edges) {
+  std::vector<Cycle> cycles;
+  for (std::size_t k = 0; k + 2 < edges.size(); ++k) {
+    const Edge& a = edges[k];
+    const Edge& b = edges[k + 1];
+    const Edge& c = edges[k + 2];
+    if (a.kind != EdgeKind::rising || b.kind != EdgeKind::falling || c.kind != EdgeKind::rising)
+      continue;
+    if (b.after_gap || c.after_gap) continue;
+    Cycle cy;
+    cy.start_s = a.t_s;
+    cy.high_s = b.t_s - a.t_s;
+    cy.low_s = c.t_s - b.t_s;
+    cy.period_s = c.t_s - a.t_s;
+    cy.duty = cy.high_s / cy.period_s;
+    cy.cap_min_V = a.cap_V;
+    cy.cap_max_V = b.cap_V;
+    cy.ctl_high_V = cy.ctl_low_V = kNaN;
+    cycles.push_back(cy);
+  }
+  return cycles;
+}
+
+std::size_t segment_samples(std::size_t from, std::size_t to) { return to > from ? to - from : 0; }
+
+// Fills in the capacitor turnaround voltages when the edges came from the output pin.
+void add_turnarounds(const TimeBase& time, std::span<const double> cap, std::vector<Edge>& edges) {
+  for (std::size_t k = 0; k < edges.size(); ++k) {
+    const std::size_t from = k > 0 ? edges[k - 1].index : 0;
+    if (k == 0 || edges[k].after_gap) continue;  // the segment before is not whole
+    const std::size_t window =
+        std::clamp<std::size_t>(segment_samples(from, edges[k].index) / 4, 3, 256);
+    edges[k].cap_V = turnaround_V(time, cap, edges[k], window, 1);
+  }
+}
+
+std::string node_name(const Capture& c, std::optional<std::size_t> k) {
+  return k ? fmt::format("\"{}\"", c.channels[*k].name) : std::string("-");
+}
+
+void check_channel(const Capture& c, std::size_t k, bool smooth_node, Findings& findings) {
+  const Channel& ch = c.channels[k];
+  if (ch.missing > 0) {
+    add(findings, "missing_samples", Severity::warning,
+        fmt::format("channel \"{}\" has {} empty or NaN cells (the first on line {}); they were "
+                    "left out, not filled in, and no edge is timed across them",
+                    ch.name, ch.missing, ch.first_missing_line));
+  }
+  if (!smooth_node) return;  // an output pin is flat at its levels by nature
+  const ChannelSpread s = channel_spread(ch.values);
+  for (const auto& [fraction, level, which] : {std::tuple{s.at_max_fraction, s.max_V, "top"},
+                                               std::tuple{s.at_min_fraction, s.min_V, "bottom"}}) {
+    if (fraction > kClippedFraction) {
+      add(findings, "clipped_channel", Severity::warning,
+          fmt::format("channel \"{}\" sits flat at {} for {} of the samples: the instrument's "
+                      "input range was probably exceeded at the {}, and turnaround voltages "
+                      "there are not trustworthy",
+                      ch.name, format_eng(level, "V"), format_percent(fraction), which));
+    }
+  }
+}
+
+}  // namespace
+
+Measurement measure(const Capture& capture, const NodeMap& map, const MeasureOptions& options) {
+  if (!map.out && !map.cap) {
+    throw InputError(capture.source, 0, 0,
+                     "found neither an output-pin nor a capacitor-node channel; name one with "
+                     "--out or --cap");
+  }
+  Measurement m;
+  const TimeBase& time = capture.time;
+  auto values = [&](std::optional<std::size_t> k) -> std::span<const double> {
+    return k ? std::span<const double>(capture.channels[*k].values) : std::span<const double>();
+  };
+  const auto out = values(map.out), cap = values(map.cap), ctl = values(map.ctl);
+  m.summary.out_low_V = m.summary.out_high_V = kNaN;
+
+  for (auto k : {map.out, map.cap, map.ctl})
+    if (k) check_channel(capture, *k, k != map.out, m.findings);
+
+  EdgeScan scan;
+  bool have_edges = false;
+  bool try_cap = out.empty();
+  if (!out.empty()) {
+    const ChannelSpread spread = channel_spread(out);
+    const TwoLevels levels = two_levels(out, spread);
+    if (!(spread.p_high_V - spread.p_low_V > kFlatOutput_V)) {
+      const bool low = spread.median_V < kLowLevel_V;
+      add(m.findings, low ? "stuck_low" : "stuck_high", Severity::problem,
+          fmt::format("not oscillating: the output {} stays {} at {}{}",
+                      node_name(capture, map.out), low ? "low" : "high",
+                      format_eng(spread.median_V, "V"),
+                      low ? " (no supply, reset held low, or the threshold held above the control "
+                            "voltage)"
+                          : " (the capacitor never reaches the upper threshold: an open timing "
+                            "capacitor path, a leaky capacitor, or a control pin pulled high)"));
+    } else if (levels.mid_band_fraction > 0.2) {
+      add(m.findings, "no_clean_levels", Severity::problem,
+          fmt::format("the output {} does not switch between two clean levels ({} of the samples "
+                      "lie mid-way): it may be noise, a wrong channel, or far too slow a capture",
+                      node_name(capture, map.out), format_percent(levels.mid_band_fraction, 0)));
+      try_cap = true;
+    } else {
+      scan = output_edges(time, out, options.edges);
+      m.edge_node = "out";
+      m.summary.out_low_V = scan.levels.low_V;
+      m.summary.out_high_V = scan.levels.high_V;
+      have_edges = true;
+      if (!cap.empty()) add_turnarounds(time, cap, scan.edges);
+    }
+  }
+  if (try_cap && !cap.empty()) {
+    const ChannelSpread spread = channel_spread(cap);
+    if (!(spread.p_high_V - spread.p_low_V > kFlatCap_V)) {
+      add(m.findings, "stuck_cap", Severity::problem,
+          fmt::format("not oscillating: the capacitor node {} sits at {} and never turns around",
+                      node_name(capture, map.cap), format_eng(spread.median_V, "V")));
+    } else {
+      scan = sawtooth_edges(time, cap, options.edges);
+      m.edge_node = "cap";
+      have_edges = true;
+      if (!out.empty())
+        add(m.findings, "edges_from_cap", Severity::info,
+            "edges were taken from the capacitor node's turnarounds instead of the output");
+      // A record that begins with the power-up charge: the capacitor starts
+      // from well below where it later turns around.
+      if (!scan.edges.empty() && scan.edges.front().kind == EdgeKind::falling) {
+        double v0 = kNaN;
+        for (double v : cap)
+          if (!std::isnan(v)) {
+            v0 = v;
+            break;
+          }
+        std::vector<double> mins;
+        for (const Edge& e : scan.edges)
+          if (e.kind == EdgeKind::rising) mins.push_back(e.cap_V);
+        const double min_med = median_of(mins);
+        if (!std::isnan(v0) && !std::isnan(min_med) &&
+            v0 < min_med - 0.25 * (spread.p_high_V - min_med)) {
+          add(m.findings, "startup_cycle", Severity::info,
+              fmt::format("the record starts with the capacitor at {}, below the lower "
+                          "turnaround ({}): a power-up charge, left out with the partial cycle",
+                          format_eng(v0, "V"), format_eng(min_med, "V")));
+        }
+      }
+    }
+  }
+  if (scan.glitches > 0) {
+    add(m.findings, "glitches_removed", Severity::info,
+        fmt::format("{} short pulse{} on the {} (under {} of a typical segment) were taken as "
+                    "glitches and removed",
+                    scan.glitches, scan.glitches == 1 ? "" : "s",
+                    m.edge_node == "out" ? "output" : "capacitor node",
+                    format_percent(options.edges.glitch_fraction, 0)));
+  }
+  if (!have_edges) return m;
+
+  m.cycles = cycles_from(scan.edges);
+  const double t_first = time.at(0), t_last = time.at(capture.samples() - 1);
+
+  if (!ctl.empty()) {
+    for (Cycle& c : m.cycles) {
+      c.ctl_high_V = mean_between(time, ctl, c.start_s, c.start_s + c.high_s);
+      c.ctl_low_V = mean_between(time, ctl, c.start_s + c.high_s, c.start_s + c.period_s);
+    }
+  }
+
+  // Start-up: the first charge begins from below the lower turnaround.
+  if (m.cycles.size() >= 2) {
+    std::vector<double> later_min, later_max, later_high;
+    for (std::size_t i = 1; i < m.cycles.size(); ++i) {
+      later_min.push_back(m.cycles[i].cap_min_V);
+      later_max.push_back(m.cycles[i].cap_max_V);
+      later_high.push_back(m.cycles[i].high_s);
+    }
+    const double min_med = median_of(later_min), max_med = median_of(later_max);
+    Cycle& first = m.cycles.front();
+    if (!std::isnan(min_med) && !std::isnan(first.cap_min_V)) {
+      first.startup = first.cap_min_V < min_med - 0.25 * (max_med - min_med);
+    } else if (m.cycles.size() >= 3) {
+      first.startup = first.high_s > 1.25 * median_of(later_high);
+    }
+    if (first.startup) {
+      add(m.findings, "startup_cycle", Severity::info,
+          std::isnan(first.cap_min_V)
+              ? fmt::format("the first cycle's high time ({}) is much longer than the rest: a "
+                            "power-up charge from below the lower threshold; left out of the "
+                            "statistics",
+                            format_eng(first.high_s, "s"))
+              : fmt::format("the first cycle starts with the capacitor at {}, below the lower "
+                            "turnaround ({}): a power-up charge; left out of the statistics",
+                            format_eng(first.cap_min_V, "V"), format_eng(min_med, "V")));
+    }
+  }
+
+  std::vector<double> period, high, low, duty, cmax, cmin, ctlv, mid_t;
+  for (const Cycle& c : m.cycles) {
+    if (c.startup) continue;
+    period.push_back(c.period_s);
+    high.push_back(c.high_s);
+    low.push_back(c.low_s);
+    duty.push_back(c.duty);
+    cmax.push_back(c.cap_max_V);
+    cmin.push_back(c.cap_min_V);
+    ctlv.push_back(c.ctl_high_V);
+    ctlv.push_back(c.ctl_low_V);
+    mid_t.push_back(c.start_s + 0.5 * c.period_s);
+  }
+  Summary& s = m.summary;
+  s.cycles = period.size();
+  s.period_s = describe(period);
+  s.high_s = describe(high);
+  s.low_s = describe(low);
+  s.duty = describe(duty);
+  s.cap_max_V = describe(cmax);
+  s.cap_min_V = describe(cmin);
+  s.ctl_V = describe(ctlv);
+  s.frequency_Hz = s.cycles ? 1.0 / s.period_s.mean : kNaN;
+  s.jitter_c2c_s = rms_successive_difference(period);
+  if (s.cycles >= 3) {
+    const LineFit f = fit_line(mid_t, period);
+    s.drift.known = !std::isnan(f.slope_sigma);
+    s.drift.ppm_per_s = f.slope / s.period_s.mean * 1e6;
+    s.drift.sigma_ppm_per_s = f.slope_sigma / s.period_s.mean * 1e6;
+  }
+
+  // Partial cycles at either end of the record.
+  if (!m.cycles.empty()) {
+    const double head_s = m.cycles.front().start_s - t_first;
+    const Cycle& last = m.cycles.back();
+    const double tail_s = t_last - (last.start_s + last.period_s);
+    if (head_s > 0.0 || tail_s > 0.0) {
+      add(m.findings, "partial_cycles", Severity::info,
+          fmt::format("the record starts {} before the first whole cycle and ends {} after the "
+                      "last; those partial cycles are left out",
+                      format_eng(head_s, "s"), format_eng(tail_s, "s")));
+    }
+  }
+  if (s.cycles < 2) {
+    add(m.findings, "few_cycles", s.cycles == 0 ? Severity::problem : Severity::warning,
+        s.cycles == 0
+            ? fmt::format("the record ({}) holds no whole steady cycle; capture for longer",
+                          format_eng(t_last - t_first, "s"))
+            : fmt::format("the record holds only one whole steady cycle; its spread, jitter and "
+                          "drift cannot be measured; capture for longer"));
+  }
+  if (s.cycles > 0 && time.dt_s > 0.0) {
+    const double shortest = std::min(s.high_s.min, s.low_s.min);
+    m.min_samples_per_segment = shortest / time.dt_s;
+    if (m.min_samples_per_segment < kFewSamples) {
+      add(m.findings, "few_samples_per_segment", Severity::warning,
+          fmt::format("the shortest segment ({}) spans only {:.1f} samples: edge times are "
+                      "uncertain by up to a sample ({} of it) and faster events may be aliased; "
+                      "capture at {} or more",
+                      format_eng(shortest, "s"), m.min_samples_per_segment,
+                      format_percent(1.0 / m.min_samples_per_segment, 0),
+                      format_eng(kFewSamples * 5.0 / shortest, "S/s")));
+    }
+  }
+  return m;
+}
+
+}  // namespace benchtau

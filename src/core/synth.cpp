@@ -1,0 +1,101 @@
+// benchtau: exact synthetic timer waveforms.
+#include "src/core/synth.h"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <random>
+
+namespace benchtau {
+namespace {
+
+// Time for V to go from v0 toward target until it reaches v1, on tau.
+double time_to(double tau_s, double v0, double v1, double target) {
+  const double ratio = (target - v0) / (target - v1);
+  if (!(ratio > 0.0) || !std::isfinite(ratio)) return std::numeric_limits<double>::quiet_NaN();
+  return tau_s * std::log(ratio);
+}
+
+}  // namespace
+
+double AstableWave::high_s() const {
+  return time_to(charge_tau_s, 0.5 * ctl_V, ctl_V, charge_target_V);
+}
+
+double AstableWave::low_s() const {
+  return time_to(discharge_tau_s, ctl_V, 0.5 * ctl_V, discharge_target_V);
+}
+
+AstableWave two_resistor_astable(double supply_V, double r1_ohm, double r2_ohm, double c_F,
+                                 double out_drop_V, double out_low_V) {
+  AstableWave w;
+  w.ctl_V = 2.0 / 3.0 * supply_V;
+  w.charge_tau_s = (r1_ohm + r2_ohm) * c_F;
+  w.charge_target_V = supply_V;
+  w.discharge_tau_s = r2_ohm * c_F;
+  w.discharge_target_V = 0.0;
+  w.out_high_V = supply_V - out_drop_V;
+  w.out_low_V = out_low_V;
+  return w;
+}
+
+SynthRecord synth_astable(const AstableWave& wave, const SynthOptions& o) {
+  SynthRecord rec;
+  Capture& c = rec.capture;
+  c.source = "<synthetic>";
+  c.time_origin = "synthetic uniform rate";
+  c.time.dt_s = 1.0 / o.rate_Hz;
+  c.time.t0_s = 0.0;
+  const auto n = static_cast<std::size_t>(std::floor(o.duration_s * o.rate_Hz)) + 1;
+  auto channel = [](const char* name, std::size_t column) {
+    Channel ch;
+    ch.name = name;
+    ch.unit = "V";
+    ch.column = column;
+    return ch;
+  };
+  c.channels.push_back(channel("out_V", 1));
+  c.channels.push_back(channel("cap_V", 2));
+  if (o.with_ctl) c.channels.push_back(channel("ctl_V", 3));
+  for (Channel& ch : c.channels) ch.values.reserve(n);
+
+  std::mt19937_64 rng(o.seed);
+  std::normal_distribution<double> noise(0.0, 1.0);
+  const double lsb = o.bits > 0 ? o.full_scale_V / std::ldexp(1.0, o.bits) : 0.0;
+  auto adc = [&](double v) {
+    if (o.noise_V > 0.0) v += o.noise_V * noise(rng);
+    if (lsb > 0.0) v = std::clamp(std::round(v / lsb), 0.0, std::ldexp(1.0, o.bits) - 1.0) * lsb;
+    return v;
+  };
+
+  bool high = true;
+  double phase_start = -o.phase_s;
+  double v_start = 0.5 * wave.ctl_V;
+  double phase_len = wave.high_s();
+  if (o.power_up) {
+    phase_start = 0.0;
+    v_start = 0.0;
+    phase_len = time_to(wave.charge_tau_s, 0.0, wave.ctl_V, wave.charge_target_V);
+  }
+  for (std::size_t i = 0; i < n; ++i) {
+    const double t = c.time.at(i);
+    while (t >= phase_start + phase_len) {
+      phase_start += phase_len;
+      high = !high;
+      v_start = high ? 0.5 * wave.ctl_V : wave.ctl_V;
+      phase_len = high ? wave.high_s() : wave.low_s();
+      if (phase_start >= 0.0)
+        rec.edges.push_back(
+            {phase_start, high ? EdgeKind::rising : EdgeKind::falling, i, false, v_start});
+    }
+    const double tau = high ? wave.charge_tau_s : wave.discharge_tau_s;
+    const double target = high ? wave.charge_target_V : wave.discharge_target_V;
+    const double cap = target + (v_start - target) * std::exp(-(t - phase_start) / tau);
+    c.channels[0].values.push_back(adc(high ? wave.out_high_V : wave.out_low_V));
+    c.channels[1].values.push_back(adc(cap));
+    if (o.with_ctl) c.channels[2].values.push_back(adc(wave.ctl_V));
+  }
+  return rec;
+}
+
+}  // namespace benchtau

@@ -1,0 +1,55 @@
+// benchtau: exact synthetic timer waveforms, for tests and demo captures.
+#pragma once
+
+#include <cstdint>
+#include <vector>
+
+#include "src/core/capture.h"
+#include "src/core/edges.h"
+
+namespace benchtau {
+
+// An astable's capacitor node as two exponential phases between the control
+// voltage and half of it (the two comparator thresholds):
+//   charging (output high):    V(t) -> charge_target_V    with charge_tau_s
+//   discharging (output low):  V(t) -> discharge_target_V with discharge_tau_s
+struct AstableWave {
+  double ctl_V = 6.0;
+  double charge_tau_s = 1e-3;
+  double charge_target_V = 9.0;
+  double discharge_tau_s = 1e-3;
+  double discharge_target_V = 0.0;
+  double out_high_V = 7.3;
+  double out_low_V = 0.1;
+
+  // Exact phase durations; NaN when a target does not lie beyond its threshold.
+  double high_s() const;
+  double low_s() const;
+};
+
+// The classic two-resistor astable with the control pin decoupled: charging
+// through R1 + R2 toward the supply, discharging through R2 toward ground,
+// thresholds at 2/3 and 1/3 of the supply (three equal divider resistors).
+AstableWave two_resistor_astable(double supply_V, double r1_ohm, double r2_ohm, double c_F,
+                                 double out_drop_V = 1.7, double out_low_V = 0.1);
+
+struct SynthOptions {
+  double rate_Hz = 100e3;
+  double duration_s = 10e-3;
+  double phase_s = 0.0;   // how far into a cycle (from a rising edge) the record starts
+  bool power_up = false;  // start at 0 V with the output just gone high
+  int bits = 0;           // ADC resolution over [0, full_scale_V]; 0 keeps full precision
+  double full_scale_V = 10.0;
+  double noise_V = 0.0;  // Gaussian, RMS, added before quantisation
+  std::uint64_t seed = 1;
+  bool with_ctl = true;  // add a control-pin channel
+};
+
+struct SynthRecord {
+  Capture capture;          // channels "out_V", "cap_V" and, if asked, "ctl_V"; uniform time
+  std::vector<Edge> edges;  // the exact switching times within the record
+};
+
+SynthRecord synth_astable(const AstableWave& wave, const SynthOptions& options);
+
+}  // namespace benchtau
