@@ -97,8 +97,27 @@ std::optional<double> meeting_time(const Quadratic& left, const Quadratic& right
   return best;
 }
 
+// The smallest step the channel resolves (one ADC code, or finer for
+// unquantised data): the 1st percentile of the nonzero sample-to-sample steps.
+double resolution_V(std::span<const double> v) {
+  std::vector<double> steps;
+  const std::size_t stride = std::max<std::size_t>(1, v.size() / 100000);
+  for (std::size_t i = stride; i < v.size(); i += stride) {
+    const double d = std::fabs(v[i] - v[i - 1]);
+    if (d > 0.0 && std::isfinite(d)) steps.push_back(d);
+  }
+  if (steps.empty()) return 0.0;
+  const auto at = static_cast<std::ptrdiff_t>(steps.size() / 100);
+  std::nth_element(steps.begin(), steps.begin() + at, steps.end());
+  // Floating-point residue from unit scaling must not count as a step.
+  return 1.001 * steps[static_cast<std::size_t>(at)];
+}
+
 std::size_t fit_window(std::size_t segment_samples) {
-  return std::clamp<std::size_t>(segment_samples / 4, 3, 256);
+  // A quarter of the segment keeps the curvature error small; short segments
+  // take more of themselves, or quantisation dominates.
+  const std::size_t floor = std::min<std::size_t>(8, segment_samples > 2 ? segment_samples - 2 : 0);
+  return std::clamp<std::size_t>(segment_samples / 4, std::max<std::size_t>(floor, 3), 256);
 }
 
 // Removes short segments (with the edge pair that bounds them) relative to the
@@ -140,6 +159,42 @@ std::vector<Edge> drop_glitches(const std::vector<Edge>& edges, double fraction,
     ++k;
   }
   return kept;
+}
+
+// The samples either side of a turnaround: the curve before it is fitted to
+// the last samples of [seg_first, left_end), the curve after it to the first
+// samples of [right_first, seg_end).
+struct Spans {
+  std::size_t seg_first, left_end, right_first, seg_end;
+};
+
+struct Meeting {
+  std::optional<Quadratic> left, right;
+  bool both = false;  // the curves met within [t_lo, t_hi]
+  double t_s = 0.0;
+  double cap_V = 0.0;
+};
+
+Meeting meet_curves(const TimeBase& time, std::span<const double> v, Spans s, double t_guess,
+                    double t_lo, double t_hi) {
+  Meeting m;
+  if (s.left_end >= s.seg_first + 3) {
+    const std::size_t w = std::min(fit_window(s.left_end - s.seg_first), s.left_end - s.seg_first);
+    m.left = fit_poly(time, v, s.left_end - w, s.left_end, t_guess);
+  }
+  if (s.seg_end >= s.right_first + 3 && s.seg_end <= v.size()) {
+    const std::size_t w =
+        std::min(fit_window(s.seg_end - s.right_first), s.seg_end - s.right_first);
+    m.right = fit_poly(time, v, s.right_first, s.right_first + w, t_guess);
+  }
+  if (m.left && m.right) {
+    if (auto t = meeting_time(*m.left, *m.right, t_guess, t_lo, t_hi)) {
+      m.both = true;
+      m.t_s = *t;
+      m.cap_V = m.left->at(*t);
+    }
+  }
+  return m;
 }
 
 }  // namespace
@@ -239,43 +294,34 @@ EdgeScan sawtooth_edges(const TimeBase& time, std::span<const double> cap_V,
   }
 
   // Second pass: refine each turnaround where the curves on either side meet.
+  const double step_V = resolution_V(cap_V);
   std::vector<Edge> edges;
   edges.reserve(turns.size());
   for (std::size_t k = 0; k < turns.size(); ++k) {
     const std::size_t m = turns[k].i;
     const std::size_t prev = k > 0 ? turns[k - 1].i : 0;
-    const std::size_t next = k + 1 < turns.size() ? turns[k + 1].i : cap_V.size() - 1;
-    const std::size_t guard = (m - prev >= 40 && next - m >= 40) ? 2 : 1;
+    const std::size_t next = k + 1 < turns.size() ? turns[k + 1].i : cap_V.size();
+    // Samples within a step of the extreme may belong to either side (a flat
+    // top of one ADC code): leave them all out of the fits.
+    std::size_t a = m, b = m;
+    while (a > prev + 1 && std::fabs(cap_V[a - 1] - cap_V[m]) <= step_V) --a;
+    while (b + 1 < next && std::fabs(cap_V[b + 1] - cap_V[m]) <= step_V) ++b;
     const double t_m = time.at(m);
-    std::optional<Quadratic> left, right;
-    if (m >= prev + guard + 2) {
-      const std::size_t w = std::min(fit_window(m - prev), m - prev - guard);
-      left = fit_poly(time, cap_V, m + 1 - guard - w, m + 1 - guard, t_m);
-    }
-    if (next >= m + guard + 2) {
-      const std::size_t w = std::min(fit_window(next - m), next - m - guard);
-      right = fit_poly(time, cap_V, m + guard, m + guard + w, t_m);
-    }
     Edge e{t_m, turns[k].kind, m + 1, turns[k].after_gap, cap_V[m]};
-    const double t_lo = time.at(m > 2 ? m - 2 : 0);
-    const double t_hi = time.at(std::min(m + 2, cap_V.size() - 1));
-    if (left && right) {
-      if (auto t = meeting_time(*left, *right, t_m, t_lo, t_hi)) {
-        e.t_s = *t;
-        e.cap_V = left->at(*t);
-      } else {
-        e.cap_V = left->at(t_m);
-      }
-    } else if (left) {
+    const Meeting meet =
+        meet_curves(time, cap_V, {prev + 1, a, b + 1, next}, t_m, time.at(a > 1 ? a - 1 : 0),
+                    time.at(std::min(b + 1, cap_V.size() - 1)));
+    if (meet.both) {
+      e.t_s = meet.t_s;
+      e.cap_V = meet.cap_V;
+    } else if (meet.left) {
       // The far side is too short to fit (a near-instant discharge): the turn
       // lies within the sample interval after the extreme sample.
-      const double t_next = time.at(std::min(m + 1, cap_V.size() - 1));
-      e.t_s = 0.5 * (t_m + t_next);
-      e.cap_V = left->at(e.t_s);
-    } else if (right) {
-      const double t_prev = time.at(m > 0 ? m - 1 : 0);
-      e.t_s = 0.5 * (t_prev + t_m);
-      e.cap_V = right->at(e.t_s);
+      e.t_s = 0.5 * (t_m + time.at(std::min(m + 1, cap_V.size() - 1)));
+      e.cap_V = meet.left->at(e.t_s);
+    } else if (meet.right) {
+      e.t_s = 0.5 * (time.at(m > 0 ? m - 1 : 0) + t_m);
+      e.cap_V = meet.right->at(e.t_s);
     }
     edges.push_back(e);
   }
@@ -283,14 +329,25 @@ EdgeScan sawtooth_edges(const TimeBase& time, std::span<const double> cap_V,
   return scan;
 }
 
-double turnaround_V(const TimeBase& time, std::span<const double> cap_V, const Edge& edge,
-                    std::size_t window, std::size_t guard) {
-  if (edge.index < guard + 3) return kNaN;
-  const std::size_t last = std::min(edge.index - guard, cap_V.size());
-  const std::size_t first = last > window ? last - window : 0;
-  if (last - first < 3) return kNaN;
-  const auto q = fit_poly(time, cap_V, first, last, edge.t_s);
-  return q ? q->at(edge.t_s) : kNaN;
+void refine_with_cap(const TimeBase& time, std::span<const double> cap_V,
+                     std::vector<Edge>& edges) {
+  for (std::size_t k = 0; k < edges.size(); ++k) {
+    Edge& e = edges[k];
+    const std::size_t j = e.index;  // first sample after the output crossed
+    if (j < 2 || j + 1 >= cap_V.size()) continue;
+    const std::size_t from = (k > 0 && !e.after_gap) ? edges[k - 1].index + 1 : 0;
+    const std::size_t to =
+        (k + 1 < edges.size() && !edges[k + 1].after_gap) ? edges[k + 1].index - 1 : cap_V.size();
+    // The samples either side of the crossing may hold the switching itself.
+    const Meeting meet =
+        meet_curves(time, cap_V, {from, j - 1, j + 1, to}, e.t_s, time.at(j - 2), time.at(j + 1));
+    if (meet.both) {
+      e.t_s = meet.t_s;
+      e.cap_V = meet.cap_V;
+    } else if (meet.left) {
+      e.cap_V = meet.left->at(e.t_s);
+    }
+  }
 }
 
 }  // namespace benchtau

@@ -52,11 +52,12 @@ EdgeScan output_edges(const TimeBase& time, std::span<const double> out_V,
 EdgeScan sawtooth_edges(const TimeBase& time, std::span<const double> cap_V,
                         const EdgeOptions& options = {});
 
-// The capacitor-node voltage at an edge: a quadratic fitted to the samples
-// just before the edge (the segment that ends there), extrapolated to the edge
-// time. window is how many samples to fit; the guard samples nearest the edge
-// are skipped (they may already show the switching). NaN if too few samples.
-double turnaround_V(const TimeBase& time, std::span<const double> cap_V, const Edge& edge,
-                    std::size_t window, std::size_t guard);
+// Refines edges found on the output pin with the capacitor node: each edge
+// moves to where quadratics fitted to the capacitor samples on either side
+// meet (within a sample of it), which times it to a fraction of a sample, and
+// Edge::cap_V becomes the turnaround voltage there. Where the far side is too
+// short to fit (a near-instant discharge) the time stays and cap_V comes from
+// the curve before the edge; where neither side fits, the edge is unchanged.
+void refine_with_cap(const TimeBase& time, std::span<const double> cap_V, std::vector<Edge>& edges);
 
 }  // namespace benchtau

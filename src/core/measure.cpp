@@ -83,19 +83,6 @@ std::vector<Cycle> cycles_from(const std::vector<Edge>& edges) {
   return cycles;
 }
 
-std::size_t segment_samples(std::size_t from, std::size_t to) { return to > from ? to - from : 0; }
-
-// Fills in the capacitor turnaround voltages when the edges came from the output pin.
-void add_turnarounds(const TimeBase& time, std::span<const double> cap, std::vector<Edge>& edges) {
-  for (std::size_t k = 0; k < edges.size(); ++k) {
-    const std::size_t from = k > 0 ? edges[k - 1].index : 0;
-    if (k == 0 || edges[k].after_gap) continue;  // the segment before is not whole
-    const std::size_t window =
-        std::clamp<std::size_t>(segment_samples(from, edges[k].index) / 4, 3, 256);
-    edges[k].cap_V = turnaround_V(time, cap, edges[k], window, 1);
-  }
-}
-
 std::string node_name(const Capture& c, std::optional<std::size_t> k) {
   return k ? fmt::format("\"{}\"", c.channels[*k].name) : std::string("-");
 }
@@ -169,7 +156,7 @@ Measurement measure(const Capture& capture, const NodeMap& map, const MeasureOpt
       m.summary.out_low_V = scan.levels.low_V;
       m.summary.out_high_V = scan.levels.high_V;
       have_edges = true;
-      if (!cap.empty()) add_turnarounds(time, cap, scan.edges);
+      if (!cap.empty()) refine_with_cap(time, cap, scan.edges);
     }
   }
   if (try_cap && !cap.empty()) {
