@@ -126,4 +126,19 @@ TwoLevels two_levels(std::span<const double> values, const ChannelSpread& spread
   return t;
 }
 
+double roughness(std::span<const double> values, const ChannelSpread& spread) {
+  const double swing = spread.p_high_V - spread.p_low_V;
+  if (!(swing > 0.0)) return 0.0;
+  std::vector<double> steps;
+  const std::size_t stride = std::max<std::size_t>(1, values.size() / 20000);
+  for (std::size_t i = stride; i < values.size(); i += stride) {
+    const double d = std::fabs(values[i] - values[i - 1]);
+    if (!std::isnan(d)) steps.push_back(d);
+  }
+  if (steps.empty()) return 0.0;
+  std::nth_element(steps.begin(), steps.begin() + static_cast<std::ptrdiff_t>(steps.size() / 2),
+                   steps.end());
+  return steps[steps.size() / 2] / swing;
+}
+
 }  // namespace benchtau

@@ -36,4 +36,10 @@ struct TwoLevels {
 
 TwoLevels two_levels(std::span<const double> values, const ChannelSpread& spread);
 
+// The typical step between successive samples (their median absolute
+// difference) over the channel's robust swing. A sampled waveform moves a
+// small fraction of its swing per sample; noise jumps across much of it.
+// Reads at most about 20 000 steps, spread over the record.
+double roughness(std::span<const double> values, const ChannelSpread& spread);
+
 }  // namespace benchtau

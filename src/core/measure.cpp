@@ -26,6 +26,9 @@ constexpr double kLowLevel_V = 0.8;
 constexpr double kFewSamples = 10.0;
 // A share of samples flat at a channel's extreme that means the instrument clipped.
 constexpr double kClippedFraction = 0.002;
+// A sampled sawtooth moves a few percent of its swing per sample at most;
+// noise moves a large part of it.
+constexpr double kRoughLimit = 0.1;
 
 void add(Findings& f, std::string code, Severity s, std::string message) {
   f.push_back({std::move(code), s, std::move(message)});
@@ -109,6 +112,65 @@ void check_channel(const Capture& c, std::size_t k, bool smooth_node, Findings& 
   }
 }
 
+// A power-up charge starts from below the lower threshold, so it runs longer
+// than any steady high phase. Seen either as the first whole cycle (the
+// supply came up inside the record) or as the record's leading high phase.
+void mark_startup(Measurement& m, const std::vector<Edge>& edges, std::span<const double> cap,
+                  const TimeBase& time) {
+  std::vector<double> mins, maxs, highs;
+  for (std::size_t i = 1; i < m.cycles.size(); ++i) {
+    mins.push_back(m.cycles[i].cap_min_V);
+    maxs.push_back(m.cycles[i].cap_max_V);
+    highs.push_back(m.cycles[i].high_s);
+  }
+  const double min_med = median_of(mins), max_med = median_of(maxs), high_med = median_of(highs);
+  const double margin_V = 0.25 * (max_med - min_med);
+  const bool have_cap = !std::isnan(min_med);
+  std::optional<std::string> why;
+  if (m.cycles.size() >= 2 && m.cycles.front().start_s == edges.front().t_s) {
+    Cycle& first = m.cycles.front();
+    if (have_cap && !std::isnan(first.cap_min_V)) {
+      first.startup = first.cap_min_V < min_med - margin_V;
+      if (first.startup)
+        why = fmt::format(
+            "the first cycle starts with the capacitor at {}, below the lower "
+            "turnaround ({}): a power-up charge; left out of the statistics",
+            format_eng(first.cap_min_V, "V"), format_eng(min_med, "V"));
+    } else if (m.cycles.size() >= 3 && first.high_s > 1.25 * high_med) {
+      first.startup = true;
+      why = fmt::format(
+          "the first cycle's high time ({}) is much longer than the rest ({}): a "
+          "power-up charge from below the lower threshold; left out of the "
+          "statistics",
+          format_eng(first.high_s, "s"), format_eng(high_med, "s"));
+    }
+  }
+  if (!why && !edges.empty() && edges.front().kind == EdgeKind::falling && m.cycles.size() >= 2) {
+    // The record starts in a high phase: a partial one is shorter than a
+    // steady high phase; a power-up charge is longer, or starts from below.
+    double v0 = std::numeric_limits<double>::quiet_NaN();
+    for (double v : cap) {
+      if (!std::isnan(v)) {
+        v0 = v;
+        break;
+      }
+    }
+    const double lead_s = edges.front().t_s - time.at(0);
+    if (have_cap && !std::isnan(v0) && v0 < min_med - margin_V) {
+      why = fmt::format(
+          "the record starts with the capacitor at {}, below the lower turnaround "
+          "({}): a power-up charge, left out with the partial cycle",
+          format_eng(v0, "V"), format_eng(min_med, "V"));
+    } else if (!have_cap && lead_s > 1.25 * high_med) {
+      why = fmt::format(
+          "the record starts with a high phase of {}, longer than the steady ones "
+          "({}): a power-up charge, left out with the partial cycle",
+          format_eng(lead_s, "s"), format_eng(high_med, "s"));
+    }
+  }
+  if (why) add(m.findings, "startup_cycle", Severity::info, *why);
+}
+
 }  // namespace
 
 Measurement measure(const Capture& capture, const NodeMap& map, const MeasureOptions& options) {
@@ -161,10 +223,16 @@ Measurement measure(const Capture& capture, const NodeMap& map, const MeasureOpt
   }
   if (try_cap && !cap.empty()) {
     const ChannelSpread spread = channel_spread(cap);
+    const double rough = roughness(cap, spread);
     if (!(spread.p_high_V - spread.p_low_V > kFlatCap_V)) {
       add(m.findings, "stuck_cap", Severity::problem,
           fmt::format("not oscillating: the capacitor node {} sits at {} and never turns around",
                       node_name(capture, map.cap), format_eng(spread.median_V, "V")));
+    } else if (rough > kRoughLimit) {
+      add(m.findings, "no_clean_sawtooth", Severity::problem,
+          fmt::format("the capacitor node {} jumps {} of its swing from one sample to the next: "
+                      "it may be noise, a wrong channel, or far too slow a capture",
+                      node_name(capture, map.cap), format_percent(rough, 0)));
     } else {
       scan = sawtooth_edges(time, cap, options.edges);
       m.edge_node = "cap";
@@ -172,27 +240,6 @@ Measurement measure(const Capture& capture, const NodeMap& map, const MeasureOpt
       if (!out.empty())
         add(m.findings, "edges_from_cap", Severity::info,
             "edges were taken from the capacitor node's turnarounds instead of the output");
-      // A record that begins with the power-up charge: the capacitor starts
-      // from well below where it later turns around.
-      if (!scan.edges.empty() && scan.edges.front().kind == EdgeKind::falling) {
-        double v0 = kNaN;
-        for (double v : cap)
-          if (!std::isnan(v)) {
-            v0 = v;
-            break;
-          }
-        std::vector<double> mins;
-        for (const Edge& e : scan.edges)
-          if (e.kind == EdgeKind::rising) mins.push_back(e.cap_V);
-        const double min_med = median_of(mins);
-        if (!std::isnan(v0) && !std::isnan(min_med) &&
-            v0 < min_med - 0.25 * (spread.p_high_V - min_med)) {
-          add(m.findings, "startup_cycle", Severity::info,
-              fmt::format("the record starts with the capacitor at {}, below the lower "
-                          "turnaround ({}): a power-up charge, left out with the partial cycle",
-                          format_eng(v0, "V"), format_eng(min_med, "V")));
-        }
-      }
     }
   }
   if (scan.glitches > 0) {
@@ -215,33 +262,7 @@ Measurement measure(const Capture& capture, const NodeMap& map, const MeasureOpt
     }
   }
 
-  // Start-up: the first charge begins from below the lower turnaround.
-  if (m.cycles.size() >= 2) {
-    std::vector<double> later_min, later_max, later_high;
-    for (std::size_t i = 1; i < m.cycles.size(); ++i) {
-      later_min.push_back(m.cycles[i].cap_min_V);
-      later_max.push_back(m.cycles[i].cap_max_V);
-      later_high.push_back(m.cycles[i].high_s);
-    }
-    const double min_med = median_of(later_min), max_med = median_of(later_max);
-    Cycle& first = m.cycles.front();
-    if (!std::isnan(min_med) && !std::isnan(first.cap_min_V)) {
-      first.startup = first.cap_min_V < min_med - 0.25 * (max_med - min_med);
-    } else if (m.cycles.size() >= 3) {
-      first.startup = first.high_s > 1.25 * median_of(later_high);
-    }
-    if (first.startup) {
-      add(m.findings, "startup_cycle", Severity::info,
-          std::isnan(first.cap_min_V)
-              ? fmt::format("the first cycle's high time ({}) is much longer than the rest: a "
-                            "power-up charge from below the lower threshold; left out of the "
-                            "statistics",
-                            format_eng(first.high_s, "s"))
-              : fmt::format("the first cycle starts with the capacitor at {}, below the lower "
-                            "turnaround ({}): a power-up charge; left out of the statistics",
-                            format_eng(first.cap_min_V, "V"), format_eng(min_med, "V")));
-    }
-  }
+  mark_startup(m, scan.edges, cap, time);
 
   std::vector<double> period, high, low, duty, cmax, cmin, ctlv, mid_t;
   for (const Cycle& c : m.cycles) {

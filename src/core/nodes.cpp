@@ -80,6 +80,9 @@ bool name_says(std::string_view base, std::initializer_list<std::string_view> wo
   return false;
 }
 
+// A median step over a tenth of the swing: noise, or far too slow a capture.
+constexpr double kRoughLimit = 0.1;
+
 enum class Shape { two_level, sawtooth, steady, unclear };
 
 struct Look {
@@ -96,22 +99,8 @@ Look look_at(const Channel& ch) {
     look.shape = Shape::steady;
     return look;
   }
-  // Smoothness: the typical step between samples against the swing tells a
-  // sampled waveform from noise.
-  std::vector<double> steps;
-  steps.reserve(std::min<std::size_t>(ch.values.size(), 20001));
-  const std::size_t stride = std::max<std::size_t>(1, ch.values.size() / 20000);
-  for (std::size_t i = stride; i < ch.values.size(); i += stride) {
-    const double d = std::fabs(ch.values[i] - ch.values[i - 1]);
-    if (!std::isnan(d)) steps.push_back(d);
-  }
-  double median_step = 0.0;
-  if (!steps.empty()) {
-    std::nth_element(steps.begin(), steps.begin() + static_cast<std::ptrdiff_t>(steps.size() / 2),
-                     steps.end());
-    median_step = steps[steps.size() / 2];
-  }
-  if (median_step > 0.1 * look.swing_V) {
+  const double rough = roughness(ch.values, spread);
+  if (rough > kRoughLimit) {
     look.shape = Shape::unclear;
   } else if (levels.mid_band_fraction < 0.15) {
     look.shape = Shape::two_level;

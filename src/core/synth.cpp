@@ -73,12 +73,22 @@ SynthRecord synth_astable(const AstableWave& wave, const SynthOptions& o) {
   double v_start = 0.5 * wave.ctl_V;
   double phase_len = wave.high_s();
   if (o.power_up) {
-    phase_start = 0.0;
+    phase_start = o.off_s;
     v_start = 0.0;
     phase_len = time_to(wave.charge_tau_s, 0.0, wave.ctl_V, wave.charge_target_V);
   }
+  if (o.power_up && o.off_s > 0.0) {
+    Edge on;
+    on.t_s = o.off_s;
+    on.cap_V = 0.0;
+    rec.edges.push_back(on);
+  }
   for (std::size_t i = 0; i < n; ++i) {
     const double t = c.time.at(i);
+    if (o.power_up && t < o.off_s) {
+      for (Channel& ch : c.channels) ch.values.push_back(adc(0.0));
+      continue;
+    }
     while (t >= phase_start + phase_len) {
       phase_start += phase_len;
       high = !high;

@@ -38,6 +38,7 @@ struct SynthOptions {
   double duration_s = 10e-3;
   double phase_s = 0.0;   // how far into a cycle (from a rising edge) the record starts
   bool power_up = false;  // start at 0 V with the output just gone high
+  double off_s = 0.0;     // with power_up: every node at 0 V until the supply comes up
   int bits = 0;           // ADC resolution over [0, full_scale_V]; 0 keeps full precision
   double full_scale_V = 10.0;
   double noise_V = 0.0;  // Gaussian, RMS, added before quantisation
