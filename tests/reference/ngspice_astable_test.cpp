@@ -219,9 +219,12 @@ void check_against_ngspice(const Parts& p) {
 
   const benchtau::Measurement m = benchtau::measure(csv.capture, map);
   const benchtau::Summary& s = m.summary;
+  std::string findings;
   for (const benchtau::Finding& f : m.findings) {
-    INFO(
-        fmt::format("finding {} ({}): {}", f.code, benchtau::severity_name(f.severity), f.message));
+    const std::string said =
+        fmt::format("{} ({}): {}", f.code, benchtau::severity_name(f.severity), f.message);
+    findings += "\n  finding " + said;
+    INFO("finding " << said);
     CHECK(f.severity != benchtau::Severity::problem);
   }
   CHECK(m.edge_node == "out");
@@ -241,12 +244,12 @@ void check_against_ngspice(const Parts& p) {
   WARN(fmt::format(
       "{}: ngspice {:.2f} s; high {:.6e} s (textbook {:.6e}, {:+.3f} %), low {:.6e} s "
       "(textbook {:.6e}, {:+.3f} %; with ron {:.6e}, {:+.3f} %), period {:.6e} s ({:+.3f} %), "
-      "duty {:.5f} (textbook {:.5f}), cap {:.5f} / {:.5f} V, ctl {:.5f} V",
+      "duty {:.5f} (textbook {:.5f}), cap {:.5f} / {:.5f} V, ctl {:.5f} V{}",
       p.label, simulate_s, s.high_s.mean, e.high_s, 100 * (s.high_s.mean / e.high_s - 1),
       s.low_s.mean, e.low_s, 100 * (s.low_s.mean / e.low_s - 1), e.model_low_s,
       100 * (s.low_s.mean / e.model_low_s - 1), s.period_s.mean,
       100 * (s.period_s.mean / e.period_s - 1), s.duty.mean, e.duty, s.cap_max_V.mean,
-      s.cap_min_V.mean, s.ctl_V.mean));
+      s.cap_min_V.mean, s.ctl_V.mean, findings));
 
   // Against the textbook relations.
   CHECK(s.high_s.mean == Approx(e.high_s).epsilon(textbook_rel));
