@@ -4,6 +4,8 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <tuple>
+#include <utility>
 #include <vector>
 
 namespace benchtau {
@@ -51,20 +53,32 @@ class Histogram {
   std::size_t total_ = 0;
 };
 
-// Share of samples equal to level that sit in runs of three or more.
-double flat_run_fraction(std::span<const double> values, double level, std::size_t finite) {
-  if (finite == 0) return 0.0;
-  std::size_t in_runs = 0, run = 0;
+// Samples equal to level that sit in runs of three or more, as a share of
+// the finite samples, and how many such runs there are, counting a run only
+// when the signal has crossed mid since the last one (once per cycle at most).
+std::pair<double, std::size_t> flat_runs(std::span<const double> values, double level,
+                                         double mid, std::size_t finite) {
+  if (finite == 0) return {0.0, 0};
+  std::size_t in_runs = 0, run = 0, runs = 0;
+  bool crossed = true;
+  auto close = [&] {
+    if (run >= 3) {
+      in_runs += run;
+      if (crossed) ++runs;
+      crossed = false;
+    }
+    run = 0;
+  };
   for (double v : values) {
     if (v == level) {
       ++run;
-    } else {
-      if (run >= 3) in_runs += run;
-      run = 0;
+      continue;
     }
+    close();
+    if ((level < mid && v > mid) || (level > mid && v < mid)) crossed = true;
   }
-  if (run >= 3) in_runs += run;
-  return static_cast<double>(in_runs) / static_cast<double>(finite);
+  close();
+  return {static_cast<double>(in_runs) / static_cast<double>(finite), runs};
 }
 
 }  // namespace
@@ -93,8 +107,8 @@ ChannelSpread channel_spread(std::span<const double> values) {
   s.p_high_V = h.quantile(0.999);
   s.median_V = h.quantile(0.5);
   if (hi > lo) {
-    s.at_min_fraction = flat_run_fraction(values, lo, s.finite);
-    s.at_max_fraction = flat_run_fraction(values, hi, s.finite);
+    std::tie(s.at_min_fraction, s.at_min_runs) = flat_runs(values, lo, s.median_V, s.finite);
+    std::tie(s.at_max_fraction, s.at_max_runs) = flat_runs(values, hi, s.median_V, s.finite);
   }
   return s;
 }

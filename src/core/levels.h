@@ -19,6 +19,8 @@ struct ChannelSpread {
   // at least three equal samples: the signature of an instrument's rail.
   double at_min_fraction = 0.0;
   double at_max_fraction = 0.0;
+  std::size_t at_min_runs = 0;  // how many separate such runs
+  std::size_t at_max_runs = 0;
 };
 
 ChannelSpread channel_spread(std::span<const double> values);

@@ -26,6 +26,7 @@ constexpr double kLowLevel_V = 0.8;
 constexpr double kFewSamples = 10.0;
 // A share of samples flat at a channel's extreme that means the instrument clipped.
 constexpr double kClippedFraction = 0.002;
+constexpr std::size_t kClippedRuns = 3;
 // A sampled sawtooth moves a few percent of its swing per sample at most;
 // noise moves a large part of it.
 constexpr double kRoughLimit = 0.1;
@@ -100,9 +101,12 @@ void check_channel(const Capture& c, std::size_t k, bool smooth_node, Findings& 
   }
   if (!smooth_node) return;  // an output pin is flat at its levels by nature
   const ChannelSpread s = channel_spread(ch.values);
-  for (const auto& [fraction, level, which] : {std::tuple{s.at_max_fraction, s.max_V, "top"},
-                                               std::tuple{s.at_min_fraction, s.min_V, "bottom"}}) {
-    if (fraction > kClippedFraction) {
+  // Clipping flattens every cycle that crosses the rail; one flat stretch is
+  // something else (the supply still off at the start of the record).
+  for (const auto& [fraction, runs, level, which] :
+       {std::tuple{s.at_max_fraction, s.at_max_runs, s.max_V, "top"},
+        std::tuple{s.at_min_fraction, s.at_min_runs, s.min_V, "bottom"}}) {
+    if (fraction > kClippedFraction && runs >= kClippedRuns) {
       add(findings, "clipped_channel", Severity::warning,
           fmt::format("channel \"{}\" sits flat at {} for {} of the samples: the instrument's "
                       "input range was probably exceeded at the {}, and turnaround voltages "

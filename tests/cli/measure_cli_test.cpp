@@ -1,0 +1,172 @@
+// benchtau: the command line end to end: exact text, JSON, exit codes.
+#include <fmt/format.h>
+#include <sys/wait.h>
+#include <catch2/catch.hpp>
+
+#include <array>
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <string>
+
+#include "src/core/synth.h"
+
+namespace {
+
+namespace fs = std::filesystem;
+
+struct Run {
+  int exit_code = -1;
+  std::string out;  // standard output
+  std::string err;  // standard error
+};
+
+// Runs a shell command line, capturing both streams (stderr through a file).
+Run run(const std::string& command) {
+  const fs::path err_path = fs::path(BENCHTAU_BINARY_DIR) / "cli-test-stderr.txt";
+  const std::string full = fmt::format("{} 2>'{}'", command, err_path.string());
+  Run r;
+  std::FILE* p = ::popen(full.c_str(), "r");
+  REQUIRE(p != nullptr);
+  std::array<char, 4096> buf{};
+  std::size_t n = 0;
+  while ((n = std::fread(buf.data(), 1, buf.size(), p)) > 0) r.out.append(buf.data(), n);
+  const int status = ::pclose(p);
+  r.exit_code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+  std::ifstream e(err_path);
+  r.err.assign(std::istreambuf_iterator<char>(e), std::istreambuf_iterator<char>());
+  return r;
+}
+
+std::string exe() { return fmt::format("'{}'", BENCHTAU_EXE); }
+
+fs::path scratch(const std::string& name) {
+  const fs::path dir = fs::path(BENCHTAU_BINARY_DIR) / "cli-test";
+  fs::create_directories(dir);
+  return dir / name;
+}
+
+// A two-resistor astable (R1 10k, R2 47k, C 100n, 9 V) written as a CSV file.
+fs::path astable_csv(const std::string& name, double cycles) {
+  using namespace benchtau;
+  const AstableWave w = two_resistor_astable(9.0, 10e3, 47e3, 100e-9);
+  SynthOptions o;
+  const double period = w.high_s() + w.low_s();
+  o.rate_Hz = 250e3;
+  o.duration_s = cycles * period;
+  o.phase_s = 0.25 * period;
+  o.with_ctl = false;
+  const SynthRecord rec = synth_astable(w, o);
+  const fs::path path = scratch(name);
+  std::ofstream f(path);
+  f << "time_s,out_V,cap_V\n";
+  for (std::size_t i = 0; i < rec.capture.samples(); ++i) {
+    f << fmt::format("{:.8g},{:.6g},{:.6g}\n", rec.capture.time.at(i),
+                     rec.capture.channels[0].values[i], rec.capture.channels[1].values[i]);
+  }
+  return path;
+}
+
+}  // namespace
+
+TEST_CASE("benchtau --version prints the name and version") {
+  const Run r = run(exe() + " --version");
+  CHECK(r.exit_code == 0);
+  CHECK(r.out == "benchtau 0.1.0\n");
+}
+
+TEST_CASE("benchtau with no command, or an unknown option, is an input error") {
+  CHECK(run(exe()).exit_code == 2);
+  CHECK(run(exe() + " measure --no-such-option x.csv").exit_code == 2);
+  const Run help = run(exe() + " measure --help");
+  CHECK(help.exit_code == 0);
+  CHECK(help.out.find("--cap TEXT") != std::string::npos);
+}
+
+TEST_CASE("a file that cannot be opened: exit 2 and the reason") {
+  const Run r = run(exe() + " measure /nonexistent/capture.csv");
+  CHECK(r.exit_code == 2);
+  CHECK(r.out.empty());
+  CHECK(r.err == "benchtau: /nonexistent/capture.csv: cannot open: No such file or directory\n");
+}
+
+TEST_CASE("a bad --rate names what was expected") {
+  const fs::path p = astable_csv("rate.csv", 3.3);
+  const Run r = run(exe() + " measure --rate fast '" + p.string() + "'");
+  CHECK(r.exit_code == 2);
+  CHECK(r.err ==
+        "benchtau: --rate: expected a sample rate such as 1M, 250k or 2.5 MS/s, found \"fast\"\n");
+}
+
+TEST_CASE("a channel that does not exist lists the ones that do") {
+  const fs::path p = astable_csv("nochan.csv", 3.3);
+  const Run r = run(exe() + " measure --cap pin6 '" + p.string() + "'");
+  CHECK(r.exit_code == 2);
+  CHECK(r.err == fmt::format("benchtau: {}: --cap \"pin6\": no such channel; channels are "
+                             "\"out_V\" (column 2), \"cap_V\" (column 3)\n",
+                             p.string()));
+}
+
+TEST_CASE("measure prints the table people read") {
+  const fs::path p = astable_csv("table.csv", 4.5);
+  const Run r = run(exe() + " measure '" + p.string() + "'");
+  CHECK(r.exit_code == 0);
+  CHECK(r.err.empty());
+  // The textbook relations give 3.951 ms high and 3.258 ms low (Horowitz and
+  // Hill, from memory); the table shows them to three figures.
+  CHECK(r.out.find("  high time        3.95 ms") != std::string::npos);
+  CHECK(r.out.find("  low time         3.26 ms") != std::string::npos);
+  CHECK(r.out.find("  period           7.21 ms") != std::string::npos);
+  CHECK(r.out.find("  duty             54.81 %") != std::string::npos);
+  CHECK(r.out.find("  cap max           6.00 V") != std::string::npos);
+  CHECK(r.out.find("  cap min           3.00 V") != std::string::npos);
+  CHECK(r.out.find("edges from the output pin, timed on the capacitor node") != std::string::npos);
+  CHECK(r.out.find("info     partial_cycles: ") != std::string::npos);
+}
+
+TEST_CASE("measure --json holds the documented keys, readable by Python's json module") {
+  const fs::path p = astable_csv("json.csv", 6.5);
+  const std::string py =
+      "import json,sys; d=json.load(sys.stdin); s=d['summary']; "
+      "print(d['schema'], s['cycles'], len(d['cycles']), "
+      "'%.5e' % s['period_s']['mean'], '%.5e' % s['high_s']['mean'], "
+      "'%.5e' % s['low_s']['mean'], '%.4f' % s['duty']['mean'], "
+      "'%.3f' % s['cap_max_V']['mean'], '%.3f' % s['cap_min_V']['mean'], "
+      "sorted(s['period_s']), [f['code'] for f in d['findings']])";
+  const Run r = run(exe() + " measure --json '" + p.string() + "' | /usr/bin/python3 -c \"" + py +
+                    "\"");
+  CHECK(r.exit_code == 0);
+  // ln 2 (R1+R2) C = 3.9509e-3, ln 2 R2 C = 3.2578e-3 (textbook); the record holds 6 whole cycles.
+  CHECK(r.out ==
+        "benchtau-measure-1 6 6 7.20872e-03 3.95087e-03 3.25785e-03 0.5481 6.000 3.000 "
+        "['max', 'mean', 'min', 'std'] ['partial_cycles']\n");
+}
+
+TEST_CASE("measure reads standard input for -") {
+  const fs::path p = astable_csv("stdin.csv", 3.5);
+  const Run r = run(exe() + " measure - < '" + p.string() + "'");
+  CHECK(r.exit_code == 0);
+  CHECK(r.out.rfind("<stdin>: ", 0) == 0);
+  CHECK(r.out.find("3 steady cycles") != std::string::npos);
+}
+
+TEST_CASE("a capture that holds no cycle exits 1 and says why") {
+  const fs::path p = scratch("flat.csv");
+  {
+    std::ofstream f(p);
+    f << "t,out\n";
+    for (int i = 0; i < 500; ++i) f << i * 1e-5 << ",7.3\n";
+  }
+  const Run r = run(exe() + " measure '" + p.string() + "'");
+  CHECK(r.exit_code == 1);
+  CHECK(r.out.find("problem  stuck_high: not oscillating: the output \"out\" stays high at 7.30 V") !=
+        std::string::npos);
+}
+
+TEST_CASE("benchtau safety prints the bench cautions") {
+  const Run r = run(exe() + " safety");
+  CHECK(r.exit_code == 0);
+  CHECK(r.out.find("Scope ground clips") != std::string::npos);
+  CHECK(r.out.find("Discharge\n  them through a suitable resistor") != std::string::npos);
+}
