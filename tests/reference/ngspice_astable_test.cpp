@@ -225,7 +225,8 @@ void check_against_ngspice(const Parts& p) {
         fmt::format("{} ({}): {}", f.code, benchtau::severity_name(f.severity), f.message);
     findings += "\n  finding " + said;
     INFO("finding " << said);
-    CHECK(f.severity != benchtau::Severity::problem);
+    // A noiseless record with 1000 samples a segment leaves nothing to warn about.
+    CHECK(f.severity == benchtau::Severity::info);
   }
   CHECK(m.edge_node == "out");
 
