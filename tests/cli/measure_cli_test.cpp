@@ -129,18 +129,32 @@ TEST_CASE("measure --json holds the documented keys, readable by Python's json m
   const fs::path p = astable_csv("json.csv", 6.5);
   const std::string py =
       "import json,sys; d=json.load(sys.stdin); s=d['summary']; "
-      "print(d['schema'], s['cycles'], len(d['cycles']), "
-      "'%.5e' % s['period_s']['mean'], '%.5e' % s['high_s']['mean'], "
-      "'%.5e' % s['low_s']['mean'], '%.4f' % s['duty']['mean'], "
-      "'%.3f' % s['cap_max_V']['mean'], '%.3f' % s['cap_min_V']['mean'], "
-      "sorted(s['period_s']), [f['code'] for f in d['findings']])";
-  const Run r = run(exe() + " measure --json '" + p.string() + "' | /usr/bin/python3 -c \"" + py +
-                    "\"");
+      "print(d['schema'], s['cycles'], len(d['cycles']), sorted(s['period_s']), "
+      "[f['code'] for f in d['findings']], d['nodes']['out'], d['nodes']['cap'], "
+      "d['nodes']['ctl'], d['edge_node']); "
+      "print(s['period_s']['mean'], s['high_s']['mean'], s['low_s']['mean'], "
+      "s['duty']['mean'], s['cap_max_V']['mean'], s['cap_min_V']['mean'])";
+  const Run r =
+      run(exe() + " measure --json '" + p.string() + "' | /usr/bin/python3 -c \"" + py + "\"");
   CHECK(r.exit_code == 0);
-  // ln 2 (R1+R2) C = 3.9509e-3, ln 2 R2 C = 3.2578e-3 (textbook); the record holds 6 whole cycles.
-  CHECK(r.out ==
-        "benchtau-measure-1 6 6 7.20872e-03 3.95087e-03 3.25785e-03 0.5481 6.000 3.000 "
-        "['max', 'mean', 'min', 'std'] ['partial_cycles']\n");
+  const auto newline = r.out.find('\n');
+  REQUIRE(newline != std::string::npos);
+  // 6.5 periods starting a quarter into one hold 5 whole cycles.
+  CHECK(r.out.substr(0, newline) ==
+        "benchtau-measure-1 5 5 ['max', 'mean', 'min', 'std'] ['partial_cycles'] out_V cap_V "
+        "None out");
+  double period = 0, high = 0, low = 0, duty = 0, cap_max = 0, cap_min = 0;
+  REQUIRE(std::sscanf(r.out.c_str() + newline + 1, "%lf %lf %lf %lf %lf %lf", &period, &high, &low,
+                      &duty, &cap_max, &cap_min) == 6);
+  // Textbook: t_high = ln 2 (R1 + R2) C, t_low = ln 2 R2 C (Horowitz and Hill,
+  // from memory); thresholds at 2/3 and 1/3 of 9 V (common practice).
+  const double high_s = std::log(2.0) * 57e3 * 100e-9, low_s = std::log(2.0) * 47e3 * 100e-9;
+  CHECK(high == Approx(high_s).epsilon(5e-4));
+  CHECK(low == Approx(low_s).epsilon(5e-4));
+  CHECK(period == Approx(high_s + low_s).epsilon(5e-4));
+  CHECK(duty == Approx(high_s / (high_s + low_s)).epsilon(5e-4));
+  CHECK(cap_max == Approx(6.0).margin(0.005));
+  CHECK(cap_min == Approx(3.0).margin(0.005));
 }
 
 TEST_CASE("measure reads standard input for -") {
@@ -148,7 +162,8 @@ TEST_CASE("measure reads standard input for -") {
   const Run r = run(exe() + " measure - < '" + p.string() + "'");
   CHECK(r.exit_code == 0);
   CHECK(r.out.rfind("<stdin>: ", 0) == 0);
-  CHECK(r.out.find("3 steady cycles") != std::string::npos);
+  // 3.5 periods starting a quarter into one hold 2 whole cycles.
+  CHECK(r.out.find("\n2 steady cycles, edges from the output pin") != std::string::npos);
 }
 
 TEST_CASE("a capture that holds no cycle exits 1 and says why") {
@@ -160,8 +175,9 @@ TEST_CASE("a capture that holds no cycle exits 1 and says why") {
   }
   const Run r = run(exe() + " measure '" + p.string() + "'");
   CHECK(r.exit_code == 1);
-  CHECK(r.out.find("problem  stuck_high: not oscillating: the output \"out\" stays high at 7.30 V") !=
-        std::string::npos);
+  CHECK(
+      r.out.find("problem  stuck_high: not oscillating: the output \"out\" stays high at 7.30 V") !=
+      std::string::npos);
 }
 
 TEST_CASE("benchtau safety prints the bench cautions") {
