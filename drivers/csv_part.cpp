@@ -11,6 +11,7 @@
 
 #include "drivers/csv_cell.h"
 #include "drivers/csv_dialect.h"
+#include "drivers/fast_decimal.h"
 
 namespace benchtau::csv {
 namespace {
@@ -132,8 +133,14 @@ class PartParser {
       bool ok = false;
       if constexpr (!DecimalComma) {
         // The common case: a plain number, then a separator or the line end.
-        const auto [ptr, ec] = std::from_chars(q, end, v);
-        if (ec == std::errc() && ptr != q) {
+        const char* ptr = q;
+        bool parsed = parse_short_decimal(ptr, end, v);
+        if (!parsed) {
+          const auto lib = std::from_chars(q, end, v);
+          parsed = lib.ec == std::errc() && lib.ptr != q;
+          ptr = lib.ptr;
+        }
+        if (parsed) {
           const char* after = ptr;
           if constexpr (Sep != ' ') {
             while (after < end && is_pad(*after)) ++after;

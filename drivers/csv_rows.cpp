@@ -1,11 +1,14 @@
 // benchtau: splitting the data rows into parts, parsing them side by side, joining them.
 #include "drivers/csv_rows.h"
 
+#include <sys/mman.h>
+
 #include <fmt/format.h>
 
 #include <algorithm>
 #include <atomic>
 #include <cmath>
+#include <cstdint>
 #include <exception>
 #include <functional>
 #include <limits>
@@ -41,6 +44,20 @@ void run_parts(unsigned n, const std::function<void(unsigned)>& job) {
   for (const auto& f : failures) {
     if (f) std::rethrow_exception(f);
   }
+}
+
+// Sizes a column, asking for huge pages first: faulting in a few hundred
+// megabytes 4 KiB at a time costs more than the zero-filling itself.
+void allocate_column(std::vector<double>& column, std::size_t n) {
+  column.reserve(n);
+#if defined(MADV_HUGEPAGE)
+  constexpr std::uintptr_t huge = std::uintptr_t{2} << 20;
+  const auto begin = reinterpret_cast<std::uintptr_t>(column.data());
+  const std::uintptr_t first = (begin + huge - 1) & ~(huge - 1);
+  const std::uintptr_t last = (begin + n * sizeof(double)) & ~(huge - 1);
+  if (last > first) ::madvise(reinterpret_cast<void*>(first), last - first, MADV_HUGEPAGE);
+#endif
+  column.resize(n);
 }
 
 std::size_t count_part(const ByteSource& source, std::size_t begin, std::size_t end) {
@@ -89,7 +106,7 @@ ParsedRows parse_rows(const ByteSource& source, std::size_t data_begin, std::siz
   run_parts(std::min<unsigned>(parts, static_cast<unsigned>(layout.columns)), [&](unsigned k) {
     // Zero-filling hundreds of megabytes is worth spreading over the threads.
     for (std::size_t c = k; c < layout.columns; c += std::min<std::size_t>(parts, layout.columns)) {
-      out.columns[c].resize(capacity);
+      allocate_column(out.columns[c], capacity);
     }
   });
 

@@ -117,13 +117,18 @@ std::size_t count_newlines(std::span<const char> bytes) {
   std::size_t n = bytes.size();
   std::size_t count = 0;
 #if defined(__SSE2__)
+  // Byte counters of matches (0 - (-1) per hit), summed before they can wrap.
   const __m128i nl = _mm_set1_epi8('\n');
+  const __m128i zero = _mm_setzero_si128();
   while (n >= 16) {
-    const __m128i v = _mm_loadu_si128(reinterpret_cast<const __m128i*>(p));
-    const auto mask = static_cast<unsigned>(_mm_movemask_epi8(_mm_cmpeq_epi8(v, nl)));
-    count += static_cast<std::size_t>(__builtin_popcount(mask));
-    p += 16;
-    n -= 16;
+    __m128i hits = zero;
+    for (int i = 0; i < 255 && n >= 16; ++i, p += 16, n -= 16) {
+      const __m128i v = _mm_loadu_si128(reinterpret_cast<const __m128i*>(p));
+      hits = _mm_sub_epi8(hits, _mm_cmpeq_epi8(v, nl));
+    }
+    const __m128i sums = _mm_sad_epu8(hits, zero);
+    count += static_cast<std::size_t>(_mm_cvtsi128_si32(sums)) +
+             static_cast<std::size_t>(_mm_cvtsi128_si32(_mm_unpackhi_epi64(sums, sums)));
   }
 #endif
   for (std::size_t i = 0; i < n; ++i) count += p[i] == '\n' ? 1 : 0;

@@ -1,25 +1,30 @@
-// benchtau: an exact median by radix selection over the bits of positive doubles.
+// benchtau: an exact median of the time steps, by sampling and then one counting pass.
 #include "drivers/median_step.h"
 
+#include <algorithm>
 #include <array>
 #include <bit>
+#include <cmath>
 #include <cstdint>
 #include <vector>
 
 namespace benchtau::csv {
 namespace {
 
+double step(std::span<const double> t, std::size_t i) { return t[i + 1] - t[i]; }
+
 // Positive doubles order like their bit patterns read as unsigned integers,
 // so the k-th smallest step can be found 16 bits at a time with a histogram.
-double kth_step(std::span<const double> t, std::size_t k) {
+// The fallback when sampling does not pin the median down.
+double kth_by_radix(std::span<const double> t, std::size_t k) {
   constexpr int digit_bits = 16;
   std::vector<std::size_t> histogram(std::size_t{1} << digit_bits);
   std::uint64_t prefix = 0;
   for (int pass = 0; pass < 64 / digit_bits; ++pass) {
     const int shift = 64 - digit_bits * (pass + 1);
     std::fill(histogram.begin(), histogram.end(), 0);
-    for (std::size_t i = 1; i < t.size(); ++i) {
-      const auto bits = std::bit_cast<std::uint64_t>(t[i] - t[i - 1]);
+    for (std::size_t i = 0; i + 1 < t.size(); ++i) {
+      const auto bits = std::bit_cast<std::uint64_t>(step(t, i));
       if (pass > 0 && (bits >> (shift + digit_bits)) != prefix) continue;
       ++histogram[(bits >> shift) & 0xFFFF];
     }
@@ -30,14 +35,70 @@ double kth_step(std::span<const double> t, std::size_t k) {
   return std::bit_cast<double>(prefix);
 }
 
+// The steps of ranks lo and hi (lo <= hi <= lo + 1). A sorted sample of the
+// steps brackets those ranks with [low, high]; one pass counts the steps below
+// low, equal to low and equal to high (a clean capture has a few step values
+// repeated millions of times), and gathers those strictly between. If both
+// ranks land inside, they are read off exactly; otherwise the radix fallback.
+std::array<double, 2> ranks(std::span<const double> t, std::size_t lo, std::size_t hi) {
+  const std::size_t steps = t.size() - 1;
+  constexpr std::size_t small = 1 << 16;
+  if (steps <= small) {
+    std::vector<double> all(steps);
+    for (std::size_t i = 0; i < steps; ++i) all[i] = step(t, i);
+    const auto nth = all.begin() + static_cast<std::ptrdiff_t>(lo);
+    std::nth_element(all.begin(), nth, all.end());
+    return {*nth, hi == lo ? *nth : *std::min_element(nth + 1, all.end())};
+  }
+  constexpr std::size_t samples = 1 << 14;
+  std::vector<double> sample(samples);
+  for (std::size_t j = 0; j < samples; ++j) sample[j] = step(t, j * (steps / samples));
+  std::sort(sample.begin(), sample.end());
+  // Four standard deviations of a sample quantile's rank, either side.
+  const auto margin = static_cast<std::size_t>(4.0 * std::sqrt(static_cast<double>(samples)));
+  const auto at = [&](std::size_t rank) { return rank / (steps / samples); };
+  const double low = sample[at(lo) > margin ? at(lo) - margin : 0];
+  const double high = sample[std::min(samples - 1, at(hi) + margin)];
+
+  std::size_t below = 0, at_low = 0, at_high = 0;
+  std::vector<double> between;
+  const std::size_t cap = steps / 8;
+  for (std::size_t i = 0; i < steps; ++i) {
+    const double s = step(t, i);
+    if (s < low) {
+      ++below;
+    } else if (s == low) {
+      ++at_low;
+    } else if (s == high) {
+      ++at_high;
+    } else if (s < high) {
+      if (between.size() == cap) return {kth_by_radix(t, lo), kth_by_radix(t, hi)};
+      between.push_back(s);
+    }
+  }
+  std::sort(between.begin(), between.end());
+  const auto pick = [&](std::size_t rank, double& out) {
+    if (rank < below) return false;
+    rank -= below;
+    if (rank < at_low) return out = low, true;
+    rank -= at_low;
+    if (rank < between.size()) return out = between[rank], true;
+    rank -= between.size();
+    if (rank < at_high) return out = high, true;
+    return false;
+  };
+  std::array<double, 2> r{};
+  if (pick(lo, r[0]) && pick(hi, r[1])) return r;
+  return {kth_by_radix(t, lo), kth_by_radix(t, hi)};
+}
+
 }  // namespace
 
 double median_step(std::span<const double> t_s) {
   if (t_s.size() < 2) return 0.0;
   const std::size_t steps = t_s.size() - 1;
-  const double lower = kth_step(t_s, (steps - 1) / 2);
-  if (steps % 2 == 1) return lower;
-  return 0.5 * (lower + kth_step(t_s, steps / 2));
+  const auto [a, b] = ranks(t_s, (steps - 1) / 2, steps / 2);
+  return a == b ? a : 0.5 * (a + b);
 }
 
 }  // namespace benchtau::csv

@@ -1,0 +1,78 @@
+// benchtau: the common short decimal numbers, parsed exactly without a library call.
+#pragma once
+
+#include <array>
+#include <cstdint>
+
+namespace benchtau::csv {
+
+// Parses [-]digits[.digits][(e|E)[+|-]digits] when the digits form an integer
+// m <= 2^53 and the decimal exponent e lies within [-22, 22]. Then m and 10^|e|
+// are exact doubles and one multiply or divide rounds correctly (Clinger's
+// fast path, W. D. Clinger, "How to Read Floating Point Numbers Accurately",
+// PLDI 1990), so the result is bit-identical to std::from_chars. Anything else
+// (more digits, a larger exponent, "nan", a '+') returns false and leaves the
+// number to std::from_chars. On success p moves past the number.
+inline bool parse_short_decimal(const char*& p, const char* end, double& out) {
+  static constexpr std::array<double, 23> powers{1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
+                                                 1e8,  1e9,  1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
+                                                 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22};
+  const char* q = p;
+  const bool negative = q < end && *q == '-';
+  if (negative) ++q;
+  std::uint64_t m = 0;
+  int significant = 0;
+  int exponent = 0;
+  bool any_digit = false;
+  while (q < end && static_cast<unsigned>(*q - '0') < 10) {
+    const auto d = static_cast<unsigned>(*q - '0');
+    if (m != 0 || d != 0) {
+      if (++significant > 19) return false;
+      m = m * 10 + d;
+    }
+    any_digit = true;
+    ++q;
+  }
+  if (q < end && *q == '.') {
+    ++q;
+    while (q < end && static_cast<unsigned>(*q - '0') < 10) {
+      const auto d = static_cast<unsigned>(*q - '0');
+      if (m != 0 || d != 0) {
+        if (++significant > 19) return false;
+        m = m * 10 + d;
+      }
+      --exponent;
+      any_digit = true;
+      ++q;
+    }
+  }
+  if (!any_digit) return false;
+  if (q < end && (*q == 'e' || *q == 'E')) {
+    ++q;
+    bool exp_negative = false;
+    if (q < end && (*q == '-' || *q == '+')) {
+      exp_negative = *q == '-';
+      ++q;
+    }
+    if (q >= end || static_cast<unsigned>(*q - '0') >= 10) return false;
+    int e = 0;
+    while (q < end && static_cast<unsigned>(*q - '0') < 10) {
+      if (e > 1000) return false;
+      e = e * 10 + (*q - '0');
+      ++q;
+    }
+    exponent += exp_negative ? -e : e;
+  }
+  if (m > (std::uint64_t{1} << 53)) return false;
+  double v = static_cast<double>(m);
+  if (m != 0) {
+    if (exponent < -22 || exponent > 22) return false;
+    v = exponent < 0 ? v / powers[static_cast<unsigned>(-exponent)]
+                     : v * powers[static_cast<unsigned>(exponent)];
+  }
+  out = negative ? -v : v;
+  p = q;
+  return true;
+}
+
+}  // namespace benchtau::csv
