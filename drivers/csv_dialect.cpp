@@ -118,6 +118,7 @@ struct Evaluation {
 
 struct LineRead {
   bool data = false;
+  bool starts_with_number = false;  // a row with a bad cell, rather than metadata
   std::size_t fields = 0;
   bool trailing_empty = false;
 };
@@ -127,15 +128,17 @@ LineRead read_line(std::string_view text, Candidate d, std::vector<std::string_v
   LineRead r;
   r.fields = fields.size();
   bool any_number = false;
-  for (const auto f : fields) {
-    const auto cell = parse_cell(f, d.decimal_comma);
-    if (cell.kind == CellKind::number) {
-      any_number = true;
-    } else if (!is_missing(cell.kind)) {
-      return r;
-    }
+  bool all_numbers = true;
+  for (std::size_t i = 0; i < fields.size(); ++i) {
+    // Numbers out of range are still numbers here; the row parser reports them.
+    const auto kind = parse_cell(fields[i], d.decimal_comma).kind;
+    const bool number =
+        kind == CellKind::number || kind == CellKind::out_of_range || kind == CellKind::infinite;
+    if (i == 0) r.starts_with_number = number;
+    any_number = any_number || number;
+    all_numbers = all_numbers && (number || is_missing(kind));
   }
-  r.data = any_number;
+  r.data = any_number && all_numbers;
   r.trailing_empty = d.separator != ' ' && fields.size() >= 2 && trim_blanks(fields.back()).empty();
   return r;
 }
@@ -143,11 +146,21 @@ LineRead read_line(std::string_view text, Candidate d, std::vector<std::string_v
 Evaluation evaluate(const std::vector<Line>& lines, Candidate d) {
   std::vector<LineRead> reads(lines.size());
   std::vector<std::string_view> fields;
-  std::vector<std::pair<std::size_t, std::size_t>> tally;  // field count, lines
+  std::vector<std::pair<std::size_t, std::size_t>> tally;  // field count, lines; in order seen
+  std::size_t header_fields = 0;  // of the line above the first row, when it is not one
+  std::size_t previous_content = lines.size();
   for (std::size_t i = 0; i < lines.size(); ++i) {
     if (lines[i].kind != LineKind::content) continue;
     reads[i] = read_line(lines[i].text, d, fields);
-    if (!reads[i].data) continue;
+    if (!reads[i].data) {
+      previous_content = i;
+      continue;
+    }
+    if (tally.empty() && previous_content < lines.size()) {
+      split_fields(lines[previous_content].text, d.separator, fields);
+      header_fields = fields.size();
+      if (fields.size() >= 2 && trim_blanks(fields.back()).empty()) --header_fields;
+    }
     auto it = std::find_if(tally.begin(), tally.end(),
                            [&](const auto& t) { return t.first == reads[i].fields; });
     if (it == tally.end()) {
@@ -158,10 +171,16 @@ Evaluation evaluate(const std::vector<Line>& lines, Candidate d) {
   }
   Evaluation e;
   if (tally.empty()) return e;
-  const auto modal =
-      *std::max_element(tally.begin(), tally.end(), [](const auto& a, const auto& b) {
-        return a.second < b.second || (a.second == b.second && a.first < b.first);
-      });
+  // The most common field count; a tie goes to the header's count, else to
+  // the count seen first, so that the odd row out is the one reported.
+  auto modal = tally.front();
+  for (const auto& t : tally) {
+    const bool fits_header = t.first == header_fields || t.first == header_fields + 1;
+    const bool modal_fits = modal.first == header_fields || modal.first == header_fields + 1;
+    if (t.second > modal.second || (t.second == modal.second && fits_header && !modal_fits)) {
+      modal = t;
+    }
+  }
   e.found = true;
   e.raw_fields = modal.first;
   e.score = modal.second;
@@ -173,12 +192,12 @@ Evaluation evaluate(const std::vector<Line>& lines, Candidate d) {
     seen = true;
     e.trailing_all = e.trailing_all && reads[i].trailing_empty;
   }
-  // Rows of numbers just above the first regular one belong to the data (they
-  // are ragged rows to report, not metadata to skip).
+  // Rows just above the first regular one belong to the data when they start
+  // with a number: they are ragged or bad rows to report, not metadata to skip.
   e.start = e.modal_line;
   for (std::size_t i = e.modal_line; i-- > 0;) {
     if (lines[i].kind != LineKind::content) continue;
-    if (!reads[i].data) break;
+    if (!reads[i].data && !reads[i].starts_with_number) break;
     e.start = i;
   }
   return e;
@@ -252,6 +271,35 @@ std::optional<std::vector<std::string>> header_cells(std::string_view text, Cand
   return out;
 }
 
+// Why a head holds no rows: nothing, only a header, or no numbers at all.
+std::string why_no_rows(const std::vector<Line>& lines, bool whole) {
+  const Line* last = nullptr;
+  for (const auto& l : lines) {
+    if (l.kind == LineKind::content) last = &l;
+  }
+  std::string why;
+  if (last == nullptr) {
+    why = "the file holds no lines of data";
+  } else {
+    // A last line of several names reads as a header with nothing under it.
+    std::vector<std::string_view> cells;
+    bool header = false;
+    for (const char sep : {',', ';', '\t'}) {
+      split_fields(last->text, sep, cells);
+      header =
+          header || (cells.size() >= 2 && std::all_of(cells.begin(), cells.end(), [](auto cell) {
+                       return parse_cell(cell, false).kind == CellKind::text ||
+                              trim_blanks(cell).empty();
+                     }));
+    }
+    why = header ? fmt::format("line {} looks like a header, but no rows of numbers follow it",
+                               last->number)
+                 : "found no line of numbers";
+  }
+  if (!whole) why += fmt::format(" in the first {} KiB", sniff_bytes / 1024);
+  return why;
+}
+
 std::string describe(const CsvDialect& d) {
   std::string kind;
   switch (d.separator) {
@@ -317,8 +365,8 @@ Sniffed sniff_dialect(std::span<const char> head, bool whole, const std::string&
   if (lines.empty() && !whole) {
     throw InputError(
         source, 1, 0,
-        fmt::format("line 1 is longer than {} KiB; a capture's rows are short (at most "
-                    "{} columns)",
+        fmt::format("longer than {} KiB without a line end; a capture's rows are short (at "
+                    "most {} columns)",
                     sniff_bytes / 1024, max_columns));
   }
 
@@ -332,11 +380,7 @@ Sniffed sniff_dialect(std::span<const char> head, bool whole, const std::string&
     }
   }
   if (!best.found) {
-    const bool any_content = std::any_of(lines.begin(), lines.end(),
-                                         [](const Line& l) { return l.kind == LineKind::content; });
-    std::string why = any_content ? "found no line of numbers" : "the file holds no lines of data";
-    if (!whole) why += fmt::format(" in its first {} KiB", sniff_bytes / 1024);
-    throw InputError(source, 0, 0, "no data rows: " + why);
+    throw InputError(source, 0, 0, "no data rows: " + why_no_rows(lines, whole));
   }
   if (best.raw_fields > max_columns) {
     throw InputError(source, lines[best.modal_line].number, 0,

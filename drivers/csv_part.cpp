@@ -11,6 +11,7 @@
 
 #include "drivers/csv_cell.h"
 #include "drivers/csv_dialect.h"
+#include "drivers/csv_units.h"
 #include "drivers/fast_decimal.h"
 
 namespace benchtau::csv {
@@ -235,7 +236,8 @@ class PartParser {
                                                        const char* stop, std::size_t c,
                                                        CellKind kind) {
     const auto column = static_cast<std::size_t>(field - line_begin) + 1;
-    const std::string_view cell(field, static_cast<std::size_t>(stop - field));
+    const std::string_view cell =
+        trim_blanks(std::string_view(field, static_cast<std::size_t>(stop - field)));
     const std::string& label = layout_.labels[c];
     if (cell.find('\0') != std::string_view::npos) {
       fail(column, fmt::format("found a NUL byte in {}: this is not a text file", label));

@@ -17,19 +17,19 @@ struct KeyValue {
   std::string_view key;
   std::string_view value;  // may end in a unit: "2 us"
   std::string_view unit;   // a separate unit field, when there is one
-  bool comma_split = false;
+  char delimiter = ' ';
 };
 
 bool is_field_separator(char c) { return c == ',' || c == ';' || c == '\t'; }
 
-std::optional<KeyValue> split_key_value(std::string_view text, char separator) {
-  std::array<char, 6> delims{separator, ':', '=', ',', ';', '\t'};
-  for (const char delim : delims) {
-    if (delim == ' ') continue;
-    const auto at = text.find(delim);
-    if (at == std::string_view::npos || at == 0) continue;
+std::optional<KeyValue> split_key_value(std::string_view text) {
+  // The key ends at the first delimiter of any kind: "rate;2,5;kHz", "dt = 2 us".
+  const auto at = text.find_first_of(",;\t:=");
+  if (at != std::string_view::npos && at > 0) {
+    const char delim = text[at];
     KeyValue kv;
     kv.key = trim_blanks(text.substr(0, at));
+    kv.delimiter = delim;
     std::string_view rest = text.substr(at + 1);
     if (is_field_separator(delim)) {
       const auto next = rest.find(delim);
@@ -38,7 +38,6 @@ std::optional<KeyValue> split_key_value(std::string_view text, char separator) {
         const auto unit = rest.substr(next + 1);
         kv.unit = trim_blanks(unit.substr(0, unit.find(delim)));
       }
-      kv.comma_split = delim == ',';
     } else {
       kv.value = trim_blanks(rest);
     }
@@ -135,13 +134,18 @@ KeyKind classify_key(std::string_view key) {
 PreambleTiming read_preamble(std::span<const PreambleLine> lines, const CsvDialect& dialect) {
   PreambleTiming t;
   for (const auto& line : lines) {
-    const auto kv = split_key_value(line.text, dialect.separator);
+    const auto kv = split_key_value(line.text);
     if (!kv) continue;
     const KeyKind kind = classify_key(kv->key);
     if (kind == KeyKind::none) continue;
     if ((kind == KeyKind::interval && t.interval_s) || (kind == KeyKind::rate && t.rate_Hz))
       continue;
-    const auto q = parse_quantity(kv->value, kv->unit, dialect.decimal_comma && !kv->comma_split);
+    // "key;2,5;kHz" has a decimal comma whatever the data rows use.
+    const bool comma_decimal =
+        kv->delimiter != ',' &&
+        (dialect.decimal_comma ||
+         (kv->delimiter == ';' && kv->value.find('.') == std::string_view::npos));
+    const auto q = parse_quantity(kv->value, kv->unit, comma_decimal);
     if (!q) continue;
     const auto unit = lookup_unit(q->unit);
     const Quantity want = kind == KeyKind::interval ? Quantity::time : Quantity::rate;
