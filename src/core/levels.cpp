@@ -56,8 +56,8 @@ class Histogram {
 // Samples equal to level that sit in runs of three or more, as a share of
 // the finite samples, and how many such runs there are, counting a run only
 // when the signal has crossed mid since the last one (once per cycle at most).
-std::pair<double, std::size_t> flat_runs(std::span<const double> values, double level,
-                                         double mid, std::size_t finite) {
+std::pair<double, std::size_t> flat_runs(std::span<const double> values, double level, double mid,
+                                         std::size_t finite) {
   if (finite == 0) return {0.0, 0};
   std::size_t in_runs = 0, run = 0, runs = 0;
   bool crossed = true;

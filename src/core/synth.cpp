@@ -19,17 +19,19 @@ double time_to(double tau_s, double v0, double v1, double target) {
 }  // namespace
 
 double AstableWave::high_s() const {
-  return time_to(charge_tau_s, 0.5 * ctl_V, ctl_V, charge_target_V);
+  return time_to(charge_tau_s, lower_V, upper_V, charge_target_V);
 }
 
 double AstableWave::low_s() const {
-  return time_to(discharge_tau_s, ctl_V, 0.5 * ctl_V, discharge_target_V);
+  return time_to(discharge_tau_s, upper_V, lower_V, discharge_target_V);
 }
 
 AstableWave two_resistor_astable(double supply_V, double r1_ohm, double r2_ohm, double c_F,
                                  double out_drop_V, double out_low_V) {
   AstableWave w;
-  w.ctl_V = 2.0 / 3.0 * supply_V;
+  w.upper_V = 2.0 / 3.0 * supply_V;
+  w.lower_V = w.upper_V / 2.0;
+  w.ctl_high_V = w.ctl_low_V = w.upper_V;
   w.charge_tau_s = (r1_ohm + r2_ohm) * c_F;
   w.charge_target_V = supply_V;
   w.discharge_tau_s = r2_ohm * c_F;
@@ -70,12 +72,12 @@ SynthRecord synth_astable(const AstableWave& wave, const SynthOptions& o) {
 
   bool high = true;
   double phase_start = -o.phase_s;
-  double v_start = 0.5 * wave.ctl_V;
+  double v_start = wave.lower_V;
   double phase_len = wave.high_s();
   if (o.power_up) {
     phase_start = o.off_s;
     v_start = 0.0;
-    phase_len = time_to(wave.charge_tau_s, 0.0, wave.ctl_V, wave.charge_target_V);
+    phase_len = time_to(wave.charge_tau_s, 0.0, wave.upper_V, wave.charge_target_V);
   }
   if (o.power_up && o.off_s > 0.0) {
     Edge on;
@@ -92,7 +94,7 @@ SynthRecord synth_astable(const AstableWave& wave, const SynthOptions& o) {
     while (t >= phase_start + phase_len) {
       phase_start += phase_len;
       high = !high;
-      v_start = high ? 0.5 * wave.ctl_V : wave.ctl_V;
+      v_start = high ? wave.lower_V : wave.upper_V;
       phase_len = high ? wave.high_s() : wave.low_s();
       if (phase_start >= 0.0)
         rec.edges.push_back(
@@ -103,7 +105,7 @@ SynthRecord synth_astable(const AstableWave& wave, const SynthOptions& o) {
     const double cap = target + (v_start - target) * std::exp(-(t - phase_start) / tau);
     c.channels[0].values.push_back(adc(high ? wave.out_high_V : wave.out_low_V));
     c.channels[1].values.push_back(adc(cap));
-    if (o.with_ctl) c.channels[2].values.push_back(adc(wave.ctl_V));
+    if (o.with_ctl) c.channels[2].values.push_back(adc(high ? wave.ctl_high_V : wave.ctl_low_V));
   }
   return rec;
 }

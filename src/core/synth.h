@@ -9,12 +9,17 @@
 
 namespace benchtau {
 
-// An astable's capacitor node as two exponential phases between the control
-// voltage and half of it (the two comparator thresholds):
-//   charging (output high):    V(t) -> charge_target_V    with charge_tau_s
-//   discharging (output low):  V(t) -> discharge_target_V with discharge_tau_s
+// An astable's capacitor node as two exponential phases between the two
+// comparator thresholds (the control voltage and half of it; with feedback to
+// the control pin, the upper one of the high phase and the lower one of the
+// low phase):
+//   charging (output high):    V(t) -> charge_target_V    with charge_tau_s, lower_V to upper_V
+//   discharging (output low):  V(t) -> discharge_target_V with discharge_tau_s, upper_V to lower_V
 struct AstableWave {
-  double ctl_V = 6.0;
+  double upper_V = 6.0;
+  double lower_V = 3.0;
+  double ctl_high_V = 6.0;  // the control pin as captured in each phase
+  double ctl_low_V = 6.0;
   double charge_tau_s = 1e-3;
   double charge_target_V = 9.0;
   double discharge_tau_s = 1e-3;
