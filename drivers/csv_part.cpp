@@ -89,6 +89,16 @@ class PartParser {
     return true;
   }
 
+  std::size_t line() const { return line_; }
+
+  // Whether a line (without its end) holds only blanks or a comment.
+  static bool blank_or_comment(std::span<const char> text) {
+    const char* q = text.data();
+    const char* end = q + text.size();
+    while (q < end && (*q == ' ' || *q == '\t' || *q == '\r')) ++q;
+    return q == end || *q == '#' || *q == '%' || (*q == '/' && q + 1 < end && q[1] == '/');
+  }
+
  private:
   static constexpr std::size_t check_every = 1 << 16;
 
@@ -297,8 +307,21 @@ void run(const ByteSource& source, std::size_t begin, std::size_t end, std::size
   LineBlocks blocks(source, begin, end);
   while (true) {
     if (stop_line.load(std::memory_order_relaxed) < first_line) return;
-    const auto bytes = blocks.next();
-    if (bytes.empty() || !parser.block(bytes)) return;
+    auto bytes = blocks.next();
+    if (bytes.empty()) return;
+    // The file's last line without a line end is held back: see unterminated_line.
+    std::span<const char> tail;
+    if (blocks.done() && end == source.size() && bytes.back() != '\n') {
+      const void* nl = ::memrchr(bytes.data(), '\n', bytes.size());
+      const std::size_t keep =
+          nl == nullptr ? 0
+                        : static_cast<std::size_t>(static_cast<const char*>(nl) - bytes.data()) + 1;
+      tail = bytes.subspan(keep);
+      bytes = bytes.first(keep);
+    }
+    if (!parser.block(bytes)) return;
+    if (!tail.empty() && !parser.blank_or_comment(tail)) out.unterminated_line = parser.line();
+    if (blocks.done()) return;
   }
 }
 

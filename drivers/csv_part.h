@@ -24,6 +24,8 @@ struct PartOutput {
   double first_watch = std::numeric_limits<double>::quiet_NaN();
   double last_watch = std::numeric_limits<double>::quiet_NaN();
   std::size_t watch_fail_line = 0;
+  // A last line with no line end, not read: it may be a row cut short.
+  std::size_t unterminated_line = 0;
   std::optional<InputError> error;  // the part's first error
 };
 

@@ -207,6 +207,14 @@ CsvResult read_source(const csv::ByteSource& source, const std::string& name,
   const csv::PreambleTiming preamble = csv::read_preamble(sniffed.preamble, dialect);
   csv::ParsedRows rows = csv::parse_rows(source, sniffed.data_begin, dialect.first_data_line,
                                          layout, options.threads, name);
+  std::string cut_short =
+      rows.unterminated_line == 0
+          ? std::string()
+          : fmt::format(
+                "line {} has no line end, as if the file were cut short, so it was not read",
+                rows.unterminated_line);
+  if (rows.rows == 0 && !cut_short.empty())
+    throw InputError(name, 0, 0, "no data rows: " + cut_short);
   if (rows.rows == 0) {
     throw InputError(
         name, 0, 0,
@@ -219,6 +227,10 @@ CsvResult read_source(const csv::ByteSource& source, const std::string& name,
   CsvResult result;
   result.dialect = dialect;
   result.notes = std::move(sniffed.notes);
+  if (!cut_short.empty()) {
+    cut_short[0] = 'L';
+    result.notes.push_back(cut_short + " (a row cut short can read as a wrong number).");
+  }
   Capture& capture = result.capture;
   capture.source = name;
 

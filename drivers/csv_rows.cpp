@@ -153,6 +153,7 @@ ParsedRows parse_rows(const ByteSource& source, std::size_t data_begin, std::siz
   }
   if (first_error != nullptr) throw *first_error;
   out.watch_fail_line = watch_fail;
+  out.unterminated_line = results.back().unterminated_line;
 
   // Close the gaps that blank and comment lines left at each part's end.
   std::size_t rows = 0;

@@ -35,7 +35,10 @@ struct ParsedRows {
   std::vector<ColumnGaps> gaps;
   std::size_t rows = 0;
   std::size_t watch_fail_line = 0;  // non-strict watch: first line it did not increase
-  unsigned parts = 1;               // how many parts were parsed side by side
+  // The file's last line, when it has no line end and was therefore not read
+  // (a row cut short reads as a wrong number: "2.5" cut to "2."); 0 if none.
+  std::size_t unterminated_line = 0;
+  unsigned parts = 1;  // how many parts were parsed side by side
 };
 
 // Parts smaller than this are not worth a thread of their own.

@@ -49,6 +49,8 @@ class LineBlocks {
 
   // The next span, valid until the next call; empty when the range is done.
   std::span<const char> next();
+  // Whether the span next() last gave was the range's final one.
+  bool done() const { return pos_ >= end_ && carry_size_ == 0; }
 
  private:
   const ByteSource& source_;

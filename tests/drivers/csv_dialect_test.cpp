@@ -122,9 +122,23 @@ TEST_CASE("csv: CRLF line ends, a byte-order mark and blank lines") {
     CHECK(values(r, 0) == std::vector<double>{1, 2, 3});
     CHECK(r.capture.time.t_s == std::vector<double>{0, 1, 2});
   }
-  SECTION("no line end after the last row") {
-    const auto r = read("t,a\n0,1\n1,2");
+  SECTION("a last row with no line end is not read: it may be cut short") {
+    const auto r = read("t,a\n0,1\n1,2.5\n2,3.2");
+    CHECK(values(r, 0) == std::vector<double>{1, 2.5});
+    CHECK(
+        has_note(r,
+                 "Line 4 has no line end, as if the file were cut short, so it was not read (a row "
+                 "cut short can read as a wrong number)."));
+    CHECK(benchtau::test::error_of("t,a\n0,1") ==
+          "scope.csv: no data rows: line 2 has no line end, as if the file were cut short, so it "
+          "was not "
+          "read");
+  }
+  SECTION("a last line of blanks or a comment with no line end is no row") {
+    const auto r = read("t,a\n0,1\n1,2\n# end");
     CHECK(values(r, 0) == std::vector<double>{1, 2});
+    CHECK_FALSE(has_note(r, "no line end"));
+    CHECK_FALSE(has_note(read("t,a\n0,1\n1,2\n  \r"), "no line end"));
   }
   SECTION("comment lines among the rows") {
     const auto r = read("t,a\n0,1\n# trigger\n1,2\n% marker\n// note\n2,3\n");

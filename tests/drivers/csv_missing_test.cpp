@@ -25,8 +25,10 @@ TEST_CASE("csv missing: empty and NaN cells are counted per channel") {
   CHECK(b.first_missing_line == 4);
   CHECK(b.values[0] == 2.0);
   CHECK(std::isnan(b.values[4]));
-  CHECK(has_note(r, "Column \"a\" has 3 missing values (empty or NaN), the first on line 3; they are kept as "
-                    "gaps, not filled in."));
+  CHECK(has_note(
+      r,
+      "Column \"a\" has 3 missing values (empty or NaN), the first on line 3; they are kept as "
+      "gaps, not filled in."));
   CHECK(has_note(r, "Column \"b\" has 2 missing values"));
 }
 

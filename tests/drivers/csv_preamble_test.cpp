@@ -99,19 +99,25 @@ TEST_CASE("csv preamble: with a time column the column wins, and a disagreement 
   const auto r = read("Sample interval,1 ms\nt,out\n0,1\n0.002,2\n0.004,3\n");
   CHECK(r.capture.time.dt_s == 0.002);
   CHECK(r.capture.time_origin == "time column \"t\"");
-  CHECK(has_note(r, "The preamble's sample interval (line 1) implies steps of 0.001 s, but the time column's "
-                    "median step is 0.002 s; the time column was used."));
+  CHECK(has_note(
+      r,
+      "The preamble's sample interval (line 1) implies steps of 0.001 s, but the time column's "
+      "median step is 0.002 s; the time column was used."));
   const auto same = read("Sample interval,2 ms\nt,out\n0,1\n0.002,2\n0.004,3\n");
   CHECK_FALSE(has_note(same, "preamble's sample interval"));
 }
 
 TEST_CASE("csv preamble: values that cannot be used are passed over") {
   // A date after a key, a non-positive interval and a rate in seconds.
-  const auto r = read("Sample time: 2024-01-05 10:00\nSample interval,-1,us\nSample rate,5,ms\nout\n1\n2\n",
-                      with_rate(10.0));
+  const auto r =
+      read("Sample time: 2024-01-05 10:00\nSample interval,-1,us\nSample rate,5,ms\nout\n1\n2\n",
+           with_rate(10.0));
   CHECK(r.capture.time.dt_s == 0.1);
-  CHECK(has_note(r, "Line 2 gives \"Sample interval\" as -1, which is not a positive number; it was ignored."));
-  CHECK(has_note(r, "Line 3 gives \"Sample rate\" in \"ms\", which is not a rate unit; it was ignored."));
+  CHECK(has_note(
+      r,
+      "Line 2 gives \"Sample interval\" as -1, which is not a positive number; it was ignored."));
+  CHECK(has_note(
+      r, "Line 3 gives \"Sample rate\" in \"ms\", which is not a rate unit; it was ignored."));
   CHECK(error_of("Generated,2024\nout\n1\n2\n") ==
         "scope.csv: no time column and no sample rate: give --rate (samples per second)");
 }
