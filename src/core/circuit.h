@@ -76,6 +76,7 @@ enum class Stop {
   thresholds_crossed,        // the lower threshold is not below the upper one
   held_in_reset,             // the reset pin sits below its threshold
   no_timing_path,            // a timing resistor or the capacitor is missing
+  unsupported_wiring,        // a combination the model does not cover
 };
 
 // One phase of the capacitor node: V(t) = target + (start - target) exp(-t / tau).

@@ -14,7 +14,8 @@ TimerFigures typical_figures(Family family) {
     f.out_source_ohm = 15.0;         // drop grows about 1.5 V per 100 mA (memory)
     f.out_low_V = 0.1;               // 0.1 V at 10 mA sink (memory)
     f.out_sink_ohm = 10.0;           // about 0.4 V more at 50 mA (memory)
-    f.discharge_on_ohm = 10.0;       // about 0.1 V at 10 mA (memory)
+    f.discharge_on_ohm = 5.0;        // with the saturation below, about 0.1 V at 10 mA (memory)
+    f.discharge_sat_V = 0.05;        // a small transistor's saturation at light current (memory)
     f.threshold_current_A = 100e-9;  // typically 0.1 uA, 0.25 uA at most (memory)
     f.trigger_current_A = -500e-9;   // about 0.5 uA flows out of the trigger pin (memory)
     f.reset_threshold_V = 0.7;       // 0.4-1 V (memory)
@@ -29,8 +30,9 @@ TimerFigures typical_figures(Family family) {
     f.out_high_drop_V = 0.0;   // rail to rail when lightly loaded (memory)
     f.out_source_ohm = 150.0;  // a few hundred ohms at 5 V (memory)
     f.out_low_V = 0.0;
-    f.out_sink_ohm = 50.0;           // (memory)
-    f.discharge_on_ohm = 20.0;       // (memory)
+    f.out_sink_ohm = 50.0;      // (memory)
+    f.discharge_on_ohm = 20.0;  // a MOS switch: no saturation offset (memory)
+    f.discharge_sat_V = 0.0;
     f.threshold_current_A = 10e-12;  // picoamps: CMOS inputs (memory)
     f.trigger_current_A = 10e-12;
     f.reset_threshold_V = 1.1;       // around 1.1 V (memory)

@@ -15,7 +15,8 @@ struct TimerFigures {
   double out_source_ohm = 0.0;       // output resistance when high
   double out_low_V = 0.0;            // the output's unloaded low level
   double out_sink_ohm = 0.0;         // output resistance when low
-  double discharge_on_ohm = 0.0;     // discharge switch when on
+  double discharge_on_ohm = 0.0;     // discharge switch when on...
+  double discharge_sat_V = 0.0;      // ...in series with its saturation voltage
   double threshold_current_A = 0.0;  // drawn into the threshold pin from the capacitor node
   double trigger_current_A = 0.0;    // drawn into the trigger pin from the capacitor node
   double reset_threshold_V = 0.0;    // reset below this forces the output low
