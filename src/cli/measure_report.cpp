@@ -21,6 +21,13 @@ std::string stat_row(std::string_view label, const Stat& s, std::string_view uni
                      cell(s.min), cell(s.max));
 }
 
+// Plain digits: "+1234" or "+3.42", never an exponent.
+std::string ppm_text(double v, bool sign) {
+  const bool big = std::fabs(v) >= 100.0;
+  if (sign) return big ? fmt::format("{:+.0f}", v) : fmt::format("{:+.2f}", v);
+  return big ? fmt::format("{:.0f}", v) : fmt::format("{:.2f}", v);
+}
+
 std::string rate_text(const TimeBase& t) {
   return t.dt_s > 0.0 ? format_eng(1.0 / t.dt_s, "S/s") : std::string("unknown rate");
 }
@@ -60,8 +67,11 @@ std::string measure_table(const MeasureReport& r, bool per_cycle) {
     out += fmt::format("  frequency {}; cycle-to-cycle jitter {} RMS\n",
                        format_eng(s.frequency_Hz, "Hz"), format_eng(s.jitter_c2c_s, "s"));
     if (s.drift.known) {
-      out += fmt::format("  period drift {:+.3g} ppm/s +/- {:.2g} (1 sigma)\n", s.drift.ppm_per_s,
-                         s.drift.sigma_ppm_per_s);
+      const bool significant = std::fabs(s.drift.ppm_per_s) > 2.0 * s.drift.sigma_ppm_per_s;
+      out +=
+          fmt::format("  period drift {} ppm/s +/- {} (1 sigma){}\n",
+                      ppm_text(s.drift.ppm_per_s, true), ppm_text(s.drift.sigma_ppm_per_s, false),
+                      significant ? "" : ", not significant over this record");
     }
     if (!std::isnan(s.out_low_V)) {
       out += fmt::format("  output levels {} low, {} high\n", format_eng(s.out_low_V, "V"),
