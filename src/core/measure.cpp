@@ -257,6 +257,7 @@ Measurement measure(const Capture& capture, const NodeMap& map, const MeasureOpt
   if (!have_edges) return m;
 
   m.cycles = cycles_from(scan.edges);
+  m.edges = scan.edges;
   const double t_first = time.at(0), t_last = time.at(capture.samples() - 1);
 
   if (!ctl.empty()) {
