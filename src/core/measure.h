@@ -52,6 +52,7 @@ struct MeasureOptions {
 
 struct Measurement {
   std::string edge_node;      // "out" or "cap": which node the edges came from
+  std::vector<Edge> edges;  // every edge found, in time order (after glitch removal)
   std::vector<Cycle> cycles;  // every whole cycle, start-up included (flagged)
   Summary summary;
   Findings findings;
