@@ -20,6 +20,15 @@ double seconds_since(std::chrono::steady_clock::time_point start) {
   return std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
 }
 
+double cpu_seconds() {
+  rusage usage{};
+  getrusage(RUSAGE_SELF, &usage);
+  const auto s = [](const timeval& t) {
+    return static_cast<double>(t.tv_sec) + 1e-6 * static_cast<double>(t.tv_usec);
+  };
+  return s(usage.ru_utime) + s(usage.ru_stime);
+}
+
 long peak_rss_bytes() {
   rusage usage{};
   getrusage(RUSAGE_SELF, &usage);
@@ -47,9 +56,11 @@ int main(int argc, char** argv) {
     return 2;
   }
   try {
+    const double cpu_before = cpu_seconds();
     const auto start = std::chrono::steady_clock::now();
     const benchtau::CsvResult result = benchtau::read_csv_file(path, options);
     const double read_s = seconds_since(start);
+    const double read_cpu_s = cpu_seconds() - cpu_before;
     const long rss = peak_rss_bytes();
 
     const auto& capture = result.capture;
@@ -65,7 +76,8 @@ int main(int argc, char** argv) {
         "bytes={}\nrows={}\ncolumns={}\nseconds={:.6f}\nmb_per_s={:.1f}\nrows_per_s={:.0f}\n",
         bytes, rows, columns, read_s, static_cast<double>(bytes) / 1e6 / read_s,
         static_cast<double>(rows) / read_s);
-    fmt::print("peak_rss_bytes={}\ndecoded_bytes={}\n", rss, rows * columns * sizeof(double));
+    fmt::print("cpu_seconds={:.6f}\npeak_rss_bytes={}\ndecoded_bytes={}\n", read_cpu_s, rss,
+               rows * columns * sizeof(double));
 
     // Edges on the first channel in volts (the output pin, in a timer capture).
     const benchtau::Channel* out = nullptr;
