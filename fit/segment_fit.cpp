@@ -1,0 +1,212 @@
+// benchtau: the segment fits: windows, noise scale, two passes, and the joint fits.
+#include "fit/segment_fit.h"
+
+#include <algorithm>
+#include <cmath>
+#include <exception>
+#include <limits>
+#include <stdexcept>
+#include <thread>
+#include <vector>
+
+#include <ceres/loss_function.h>
+
+#include "fit/exponential_segment.h"
+#include "fit/noise_scale.h"
+#include "fit/segment_solver.h"
+
+namespace benchtau {
+namespace {
+
+using detail::RawSegment;
+using detail::SolveSettings;
+
+// Fits every window on its own, each from its previous fit when that converged. Segments are
+// independent problems, so they are dealt round-robin to the threads (each slot of raws is
+// written by one thread only).
+void fit_each(const SegmentSamples& s, const SolveSettings& st, std::vector<RawSegment>& raws,
+              int threads) {
+  const std::size_t n = s.windows.size();
+  // A handful of segments is not worth a thread.
+  const std::size_t step = n < 8 ? 1 : static_cast<std::size_t>(std::max(1, threads));
+  auto work = [&](std::size_t from) {
+    for (std::size_t k = from; k < n; k += step) {
+      const SegmentWindow& w = s.windows[k];
+      const std::array<double, 3> start = raws[k].params;
+      raws[k] = detail::solve_segment(s.x(w), s.y(w), st, raws[k].converged ? &start : nullptr);
+    }
+  };
+  if (step == 1) {
+    work(0);
+    return;
+  }
+  std::vector<std::exception_ptr> errors(step);
+  {
+    std::vector<std::jthread> pool;
+    for (std::size_t t = 1; t < step; ++t) {
+      pool.emplace_back([&, t] {
+        try {
+          work(t);
+        } catch (...) {
+          errors[t] = std::current_exception();
+        }
+      });
+    }
+    try {
+      work(0);
+    } catch (...) {
+      errors[0] = std::current_exception();
+    }
+  }  // joins
+  for (const std::exception_ptr& e : errors)
+    if (e) std::rethrow_exception(e);
+}
+
+// The noise sigma from the first pass's residuals: a MAD (robust to glitches), scaled up for
+// the 3 parameters each segment's fit spent (the residuals of a fit are smaller than the
+// noise by sqrt((n - p) / n)).
+double residual_sigma_V(const SegmentSamples& s, const std::vector<RawSegment>& raws) {
+  std::vector<double> r;
+  r.reserve(s.y_V.size());
+  std::size_t params = 0;
+  for (std::size_t k = 0; k < raws.size(); ++k) {
+    if (!raws[k].converged) continue;
+    const auto& [log_tau, vinf, amp] = raws[k].params;
+    const SegmentWindow& w = s.windows[k];
+    const auto x = s.x(w), y = s.y(w);
+    for (std::size_t i = 0; i < x.size(); ++i)
+      r.push_back(segment_curve_V(log_tau, vinf, amp, x[i]) - y[i]);
+    params += 3;
+  }
+  if (r.size() <= params) return 0.0;
+  const double dof = static_cast<double>(r.size()) / static_cast<double>(r.size() - params);
+  return mad_sigma(r) * std::sqrt(dof);
+}
+
+double median(std::vector<double> v) {
+  if (v.empty()) return std::nan("");
+  const auto mid = v.begin() + static_cast<std::ptrdiff_t>(v.size() / 2);
+  std::nth_element(v.begin(), mid, v.end());
+  return *mid;
+}
+
+PhaseFit fit_phase(Phase phase, const SegmentSamples& s, const std::vector<RawSegment>& raws,
+                   const SolveSettings& st) {
+  // Every segment with a converged fit takes part, identifiable on its own or not: a short
+  // segment still says something about a shared tau. The start is the median of the
+  // segments that are identifiable, or failing that of all of them.
+  std::vector<std::size_t> ids;
+  std::vector<double> log_taus, vinfs, all_log_taus, all_vinfs;
+  for (std::size_t k = 0; k < raws.size(); ++k) {
+    if (s.windows[k].phase != phase || !raws[k].converged) continue;
+    ids.push_back(k);
+    all_log_taus.push_back(raws[k].params[0]);
+    all_vinfs.push_back(raws[k].params[1]);
+    if (raws[k].status == FitStatus::ok) {
+      log_taus.push_back(raws[k].params[0]);
+      vinfs.push_back(raws[k].params[1]);
+    }
+  }
+  if (log_taus.empty()) {
+    log_taus = std::move(all_log_taus);
+    vinfs = std::move(all_vinfs);
+  }
+  return detail::solve_phase(phase, s, ids, median(log_taus), median(vinfs), st);
+}
+
+void check(const SegmentFitOptions& o) {
+  if (!(o.huber_sigmas >= 0.0) || !std::isfinite(o.huber_sigmas))
+    throw std::invalid_argument("fit_segments: huber_sigmas must be 0 or more");
+  if (o.fixed_sigma_V && !(*o.fixed_sigma_V > 0.0 && std::isfinite(*o.fixed_sigma_V)))
+    throw std::invalid_argument("fit_segments: a fixed sigma must be positive");
+  if (o.min_samples < 4)
+    throw std::invalid_argument("fit_segments: min_samples must be at least 4 (3 parameters)");
+  if (o.threads < 1) throw std::invalid_argument("fit_segments: threads must be at least 1");
+}
+
+}  // namespace
+
+std::string_view status_name(FitStatus status) {
+  switch (status) {
+    case FitStatus::ok:
+      return "ok";
+    case FitStatus::too_few_samples:
+      return "too_few_samples";
+    case FitStatus::flat:
+      return "flat";
+    case FitStatus::not_identifiable:
+      return "not_identifiable";
+    case FitStatus::tau_undetermined:
+      return "tau_undetermined";
+    case FitStatus::no_convergence:
+      return "no_convergence";
+  }
+  return "unknown";
+}
+
+SegmentFitResult fit_segments(const TimeBase& time, std::span<const double> cap_V,
+                              std::span<const Edge> edges, const SegmentFitOptions& o) {
+  check(o);
+  const SegmentSamples s = segment_samples(time, cap_V, edges, o.window);
+  SegmentFitResult r;
+  r.outside = s.outside;
+
+  // The noise floor: an ADC's rounding alone is uniform over one step, sigma step/sqrt(12).
+  // Without a step (unquantised data), a tiny fraction of the span keeps sigma finite.
+  r.step_V = quantisation_step_V(cap_V);
+  double lo = std::numeric_limits<double>::infinity(), hi = -lo;
+  for (double v : cap_V)
+    if (std::isfinite(v)) lo = std::min(lo, v), hi = std::max(hi, v);
+  const double span_V = hi > lo ? hi - lo : 1.0;
+  r.sigma_floor_V = std::max(r.step_V / std::sqrt(12.0), 1e-9 * span_V);
+
+  SolveSettings st;
+  st.min_samples = o.min_samples;
+  st.flat_sigmas = o.flat_sigmas;
+  st.max_relative_tau_error = o.max_relative_tau_error;
+  st.threads = o.threads;
+  // Residuals are in sigmas, so Huber's threshold a is in sigmas too.
+  const ceres::HuberLoss huber(o.huber_sigmas > 0.0 ? o.huber_sigmas : 1.0);
+  st.loss = o.huber_sigmas > 0.0 ? &huber : nullptr;
+
+  std::vector<RawSegment> raws(s.windows.size());
+  if (o.fixed_sigma_V) {
+    st.sigma_V = *o.fixed_sigma_V;
+    fit_each(s, st, raws, o.threads);
+  } else {
+    // First pass on a sigma from the data alone; then the MAD of its residuals, and refit.
+    st.sigma_V = std::max(r.sigma_floor_V, second_difference_sigma_V(cap_V));
+    fit_each(s, st, raws, o.threads);
+    st.sigma_V = std::max(r.sigma_floor_V, residual_sigma_V(s, raws));
+    fit_each(s, st, raws, o.threads);
+  }
+  r.noise_sigma_V = st.sigma_V;
+
+  double ss = 0.0;
+  std::size_t fitted = 0;
+  r.segments.reserve(s.windows.size());
+  for (std::size_t k = 0; k < s.windows.size(); ++k) {
+    const SegmentWindow& w = s.windows[k];
+    r.segments.push_back(detail::report_segment(w, raws[k]));
+    r.excluded += w.excluded;
+    r.missing += w.missing;
+    const bool unfitted =
+        raws[k].status == FitStatus::too_few_samples || raws[k].status == FitStatus::flat;
+    (unfitted ? r.unfitted : r.used) += w.used;
+    if (raws[k].converged) {
+      ss += raws[k].rms_V * raws[k].rms_V * static_cast<double>(w.used);
+      fitted += w.used;
+    }
+  }
+  if (fitted > 0) r.rms_V = std::sqrt(ss / static_cast<double>(fitted));
+
+  r.charging.phase = Phase::charging;
+  r.discharging.phase = Phase::discharging;
+  if (o.joint) {
+    r.charging = fit_phase(Phase::charging, s, raws, st);
+    r.discharging = fit_phase(Phase::discharging, s, raws, st);
+  }
+  return r;
+}
+
+}  // namespace benchtau

@@ -1,0 +1,291 @@
+// benchtau: solving one segment or one phase with Ceres, and reading the covariance.
+#include "fit/segment_solver.h"
+
+#include <algorithm>
+#include <cmath>
+#include <deque>
+#include <memory>
+#include <utility>
+#include <vector>
+
+#include <ceres/ceres.h>
+#include <Eigen/Dense>
+
+#include "fit/exponential_segment.h"
+
+namespace benchtau::detail {
+namespace {
+
+ceres::Solver::Options solver_options(ceres::LinearSolverType type, int threads) {
+  ceres::Solver::Options o;
+  o.linear_solver_type = type;
+  o.max_num_iterations = 200;
+  // Tight, so that two independent solvers land on the same minimum to well under 1e-6.
+  o.function_tolerance = 1e-14;
+  o.gradient_tolerance = 1e-16;
+  o.parameter_tolerance = 1e-13;
+  o.num_threads = std::max(1, threads);
+  o.logging_type = ceres::SILENT;
+  o.minimizer_progress_to_stdout = false;
+  return o;
+}
+
+ceres::Problem::Options problem_options() {
+  // The cost functions live on our side (a local or a deque) and outlive the problem.
+  ceres::Problem::Options o;
+  o.cost_function_ownership = ceres::DO_NOT_TAKE_OWNERSHIP;
+  o.loss_function_ownership = ceres::DO_NOT_TAKE_OWNERSHIP;
+  return o;
+}
+
+double mean(std::span<const double> v) {
+  double s = 0.0;
+  for (double x : v) s += x;
+  return s / static_cast<double>(v.size());
+}
+
+// Raw residual RMS in volts (before any loss) and the sum of squares, for the noise estimate.
+double rms_V(std::span<const double> x, std::span<const double> y, double log_tau, double vinf,
+             double amp) {
+  double ss = 0.0;
+  for (std::size_t i = 0; i < x.size(); ++i) {
+    const double r = segment_curve_V(log_tau, vinf, amp, x[i]) - y[i];
+    ss += r * r;
+  }
+  return std::sqrt(ss / static_cast<double>(x.size()));
+}
+
+bool converged(const ceres::Solver::Summary& s) { return s.termination_type == ceres::CONVERGENCE; }
+
+Estimate estimate(double value, double variance) {
+  return {value, variance >= 0.0 ? std::sqrt(variance) : std::nan("")};
+}
+
+// Amplitude by linear least squares with tau and Vinf held: A = sum e (y - V) / sum e^2.
+double amplitude_at(std::span<const double> x, std::span<const double> y, double log_tau,
+                    double vinf) {
+  double num = 0.0, den = 0.0;
+  const double inv_tau = std::exp(-log_tau);
+  for (std::size_t i = 0; i < x.size(); ++i) {
+    const double e = std::exp(-x[i] * inv_tau);
+    num += e * (y[i] - vinf);
+    den += e * e;
+  }
+  return den > 0.0 ? num / den : 0.0;
+}
+
+}  // namespace
+
+std::array<double, 3> initial_guess(std::span<const double> x, std::span<const double> y) {
+  const std::size_t m = x.size() / 3;
+  const double span_s = x.back() - x.front();
+  double tau = span_s > 0.0 ? span_s : 1.0;
+  if (m >= 1) {
+    const double x1 = mean(x.subspan(0, m)), x3 = mean(x.subspan(2 * m, m));
+    const double d1 = mean(y.subspan(m, m)) - mean(y.subspan(0, m));
+    const double d2 = mean(y.subspan(2 * m, m)) - mean(y.subspan(m, m));
+    const double ratio = d1 / d2;
+    if (d1 * d2 > 0.0 && ratio > 1.0 && std::isfinite(ratio))
+      tau = 0.5 * (x3 - x1) / std::log(ratio);  // the mean of the two window spacings
+  }
+  // Vinf and A by least squares at that tau (2 x 2 normal equations).
+  const double inv_tau = 1.0 / tau;
+  double s1 = 0, se = 0, see = 0, sy = 0, sey = 0;
+  for (std::size_t i = 0; i < x.size(); ++i) {
+    const double e = std::exp(-x[i] * inv_tau);
+    s1 += 1.0;
+    se += e;
+    see += e * e;
+    sy += y[i];
+    sey += e * y[i];
+  }
+  const double det = s1 * see - se * se;
+  double vinf = mean(y), amp = 0.0;
+  if (det > 1e-12 * s1 * see) {
+    vinf = (see * sy - se * sey) / det;
+    amp = (s1 * sey - se * sy) / det;
+  }
+  return {std::log(tau), vinf, amp};
+}
+
+RawSegment solve_segment(std::span<const double> x, std::span<const double> y,
+                         const SolveSettings& st, const std::array<double, 3>* start) {
+  RawSegment out;
+  if (x.size() < std::max<std::size_t>(st.min_samples, 3)) return out;  // too_few_samples
+  {
+    const std::size_t m = x.size() / 3;
+    const double change = mean(y.subspan(x.size() - m, m)) - mean(y.subspan(0, m));
+    if (std::fabs(change) <=
+        st.flat_sigmas * st.sigma_V * std::sqrt(2.0 / static_cast<double>(m))) {
+      out.status = FitStatus::flat;
+      return out;
+    }
+  }
+  out.params = start ? *start : initial_guess(x, y);
+
+  ExponentialSegmentCost cost(x, y, st.sigma_V, st.loss);  // declared first: outlives problem
+  ceres::Problem problem(problem_options());
+  double* p = out.params.data();
+  problem.AddResidualBlock(&cost, nullptr, p, p + 1, p + 2);
+  ceres::Solver::Summary summary;
+  ceres::Solve(solver_options(ceres::DENSE_QR, 1), &problem, &summary);
+  out.iterations = static_cast<int>(summary.iterations.size());
+  out.converged =
+      converged(summary) && std::isfinite(p[0]) && std::isfinite(p[1]) && std::isfinite(p[2]);
+  if (!out.converged) {
+    out.status = FitStatus::no_convergence;
+    return out;
+  }
+  out.rms_V = rms_V(x, y, p[0], p[1], p[2]);
+
+  // A small dense problem: the SVD both inverts J'J and tells a rank-deficient Jacobian
+  // (condition number above 1e7) from a merely large covariance.
+  ceres::Covariance::Options co;
+  co.algorithm_type = ceres::DENSE_SVD;
+  ceres::Covariance covariance(co);
+  const std::vector<const double*> blocks = {p, p + 1, p + 2};
+  if (!covariance.Compute(blocks, &problem)) {
+    out.status = FitStatus::not_identifiable;
+    return out;
+  }
+  covariance.GetCovarianceMatrix(blocks, out.covariance.data());  // symmetric: order moot
+  const double se_log_tau = std::sqrt(out.covariance(0, 0));
+  out.status =
+      se_log_tau <= st.max_relative_tau_error ? FitStatus::ok : FitStatus::tau_undetermined;
+  return out;
+}
+
+SegmentFit report_segment(const SegmentWindow& window, const RawSegment& raw) {
+  SegmentFit f;
+  f.window = window;
+  f.status = raw.status;
+  f.iterations = raw.iterations;
+  if (raw.converged) f.rms_V = raw.rms_V;
+  if (raw.status != FitStatus::ok) return f;
+  const auto& [log_tau, vinf, amp] = raw.params;
+  const Eigen::Matrix3d& c = raw.covariance;
+  const double tau = std::exp(log_tau);
+  f.tau_s = {tau, tau * std::sqrt(c(0, 0))};  // d tau = tau d ln(tau)
+  f.vinf_V = estimate(vinf, c(1, 1));
+  f.amp_V = estimate(amp, c(2, 2));
+  const Eigen::Vector3d g_start(0.0, 1.0, 1.0);
+  f.start_V = estimate(vinf + amp, g_start.dot(c * g_start));
+  const double e = std::exp(-window.length_s() / tau);
+  const Eigen::Vector3d g_end(amp * e * window.length_s() / tau, 1.0, e);
+  f.end_V = estimate(vinf + amp * e, g_end.dot(c * g_end));
+  return f;
+}
+
+PhaseFit solve_phase(Phase phase, const SegmentSamples& s, std::span<const std::size_t> ids,
+                     double log_tau0, double vinf0_V, const SolveSettings& st) {
+  PhaseFit f;
+  f.phase = phase;
+  f.segments.assign(ids.begin(), ids.end());
+  const std::size_t n = ids.size();
+  if (n == 0 || !std::isfinite(log_tau0) || !std::isfinite(vinf0_V)) return f;
+
+  double log_tau = log_tau0, vinf = vinf0_V;
+  std::vector<double> amp(n);
+  std::deque<ExponentialSegmentCost> costs;  // built in place; addresses stay put
+  ceres::Problem problem(problem_options());
+  auto ordering = std::make_shared<ceres::ParameterBlockOrdering>();
+  for (std::size_t k = 0; k < n; ++k) {
+    const SegmentWindow& w = s.windows[ids[k]];
+    amp[k] = amplitude_at(s.x(w), s.y(w), log_tau, vinf);
+    costs.emplace_back(s.x(w), s.y(w), st.sigma_V, st.loss);
+    problem.AddResidualBlock(&costs.back(), nullptr, &log_tau, &vinf, &amp[k]);
+    ordering->AddElementToGroup(&amp[k], 0);  // eliminated first: one per residual block
+    f.used += w.used;
+  }
+  ordering->AddElementToGroup(&log_tau, 1);
+  ordering->AddElementToGroup(&vinf, 1);
+
+  // The amplitudes are the Schur complement's eliminated blocks; what is left is 2 x 2.
+  ceres::Solver::Options so = solver_options(ceres::DENSE_SCHUR, st.threads);
+  so.linear_solver_ordering = ordering;
+  ceres::Solver::Summary summary;
+  ceres::Solve(so, &problem, &summary);
+  f.iterations = static_cast<int>(summary.iterations.size());
+  if (!converged(summary) || !std::isfinite(log_tau) || !std::isfinite(vinf)) {
+    f.status = FitStatus::no_convergence;
+    return f;
+  }
+  f.amp_V = amp;
+  double ss = 0.0;
+  for (std::size_t k = 0; k < n; ++k) {
+    const SegmentWindow& w = s.windows[ids[k]];
+    const double r = rms_V(s.x(w), s.y(w), log_tau, vinf, amp[k]);
+    ss += r * r * static_cast<double>(w.used);
+  }
+  f.rms_V = std::sqrt(ss / static_cast<double>(f.used));
+
+  ceres::Covariance::Options co;
+  co.algorithm_type = ceres::SPARSE_QR;  // rank-revealing; the Jacobian is sparse
+  co.num_threads = std::max(1, st.threads);
+  ceres::Covariance covariance(co);
+  std::vector<std::pair<const double*, const double*>> pairs = {
+      {&log_tau, &log_tau}, {&log_tau, &vinf}, {&vinf, &vinf}};
+  pairs.reserve(3 + 3 * n);
+  for (std::size_t k = 0; k < n; ++k) {
+    pairs.emplace_back(&log_tau, &amp[k]);
+    pairs.emplace_back(&vinf, &amp[k]);
+    pairs.emplace_back(&amp[k], &amp[k]);
+  }
+  if (!covariance.Compute(pairs, &problem)) {
+    f.status = FitStatus::not_identifiable;
+    return f;
+  }
+  Eigen::Matrix2d c_tt;
+  covariance.GetCovarianceBlock(&log_tau, &log_tau, &c_tt(0, 0));
+  covariance.GetCovarianceBlock(&log_tau, &vinf, &c_tt(0, 1));
+  covariance.GetCovarianceBlock(&vinf, &vinf, &c_tt(1, 1));
+  c_tt(1, 0) = c_tt(0, 1);
+  if (std::sqrt(c_tt(0, 0)) > st.max_relative_tau_error) {
+    f.status = FitStatus::tau_undetermined;
+    return f;
+  }
+  f.status = FitStatus::ok;
+  const double tau = std::exp(log_tau);
+  f.tau_s = {tau, tau * std::sqrt(c_tt(0, 0))};
+  f.vinf_V = estimate(vinf, c_tt(1, 1));
+
+  // The mean turnaround voltages are functions of every amplitude, so their variance needs
+  // cov(A_j, A_k) for j != k too. No residual block holds two amplitudes, so J'J's amplitude
+  // block is diagonal, and the block inverse gives those cross terms from blocks already
+  // computed: cov(A_j, A_k) = c_j' C^-1 c_k, with c_k = cov(theta, A_k), C = cov(theta),
+  // theta = (ln tau, Vinf). Checked against a dense inverse of J'J in the tests.
+  const Eigen::Matrix2d c_tt_inv = c_tt.inverse();
+  std::vector<Eigen::Vector2d> c_ta(n);
+  std::vector<double> c_aa(n);
+  for (std::size_t k = 0; k < n; ++k) {
+    covariance.GetCovarianceBlock(&log_tau, &amp[k], &c_ta[k](0));
+    covariance.GetCovarianceBlock(&vinf, &amp[k], &c_ta[k](1));
+    covariance.GetCovarianceBlock(&amp[k], &amp[k], &c_aa[k]);
+  }
+  // Variance of (1/n) sum_k [Vinf + A_k g_k] with g_k = exp(-L_k / tau) (end) or 1 (start).
+  auto mean_turnaround = [&](bool at_end) {
+    Eigen::Vector2d g_t(0.0, 1.0);
+    std::vector<double> g(n);
+    double value = vinf;
+    for (std::size_t k = 0; k < n; ++k) {
+      const double len_s = s.windows[ids[k]].length_s();
+      const double e = at_end ? std::exp(-len_s / tau) : 1.0;
+      g[k] = e / static_cast<double>(n);
+      value += amp[k] * g[k];
+      if (at_end) g_t(0) += amp[k] * e * (len_s / tau) / static_cast<double>(n);
+    }
+    Eigen::Vector2d w = Eigen::Vector2d::Zero();
+    double var = g_t.dot(c_tt * g_t);
+    for (std::size_t k = 0; k < n; ++k) {
+      w += g[k] * c_ta[k];
+      var += g[k] * g[k] * (c_aa[k] - c_ta[k].dot(c_tt_inv * c_ta[k]));
+    }
+    var += 2.0 * g_t.dot(w) + w.dot(c_tt_inv * w);
+    return estimate(value, var);
+  };
+  f.start_V = mean_turnaround(false);
+  f.end_V = mean_turnaround(true);
+  return f;
+}
+
+}  // namespace benchtau::detail

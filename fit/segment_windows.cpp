@@ -1,0 +1,77 @@
+// benchtau: segment windows between edges, and the samples gathered for the fits.
+#include "fit/segment_windows.h"
+
+#include <algorithm>
+#include <cmath>
+#include <stdexcept>
+
+namespace benchtau {
+namespace {
+
+// The first sample strictly after t_s, starting the search at the edge's own index (which
+// the edge finders set to the first sample after the edge, within a sample of it).
+std::size_t first_after(const TimeBase& time, std::size_t n, std::size_t hint, double t_s) {
+  std::size_t i = std::min(hint, n);
+  while (i > 0 && time.at(i - 1) > t_s) --i;
+  while (i < n && time.at(i) <= t_s) ++i;
+  return i;
+}
+
+}  // namespace
+
+SegmentSamples segment_samples(const TimeBase& time, std::span<const double> cap_V,
+                               std::span<const Edge> edges, const WindowRule& rule) {
+  const std::size_t n = cap_V.size();
+  if (!time.uniform() && time.t_s.size() != n)
+    throw std::invalid_argument("segment_samples: explicit times and values differ in length");
+  if (time.uniform() && !(time.dt_s > 0.0))
+    throw std::invalid_argument("segment_samples: the sample interval must be positive");
+
+  SegmentSamples out;
+  std::size_t total_used = 0;
+  std::size_t covered = 0;
+  for (std::size_t k = 0; k + 1 < edges.size(); ++k) {
+    const Edge& a = edges[k];
+    const Edge& b = edges[k + 1];
+    if (a.kind == b.kind || !(b.t_s > a.t_s)) continue;  // not a whole segment
+    SegmentWindow w;
+    w.phase = a.kind == EdgeKind::rising ? Phase::charging : Phase::discharging;
+    w.start_edge = k;
+    w.start_s = a.t_s;
+    w.end_s = b.t_s;
+    // The segment's samples are those in (start_s, end_s].
+    const std::size_t s0 = first_after(time, n, a.index, a.t_s);
+    const std::size_t s1 = first_after(time, n, b.index, b.t_s);
+    const std::size_t len = s1 > s0 ? s1 - s0 : 0;
+    covered += len;
+    const auto skip_after = std::max(
+        rule.skip_after_min,
+        static_cast<std::size_t>(std::ceil(rule.skip_after_fraction * static_cast<double>(len))));
+    w.first = std::min(s0 + skip_after, s1);
+    w.end = std::max(w.first, s1 >= rule.skip_before ? s1 - rule.skip_before : 0);
+    w.excluded = len - (w.end - w.first);
+    for (std::size_t i = w.first; i < w.end; ++i) {
+      if (std::isfinite(cap_V[i]))
+        ++w.used;
+      else
+        ++w.missing;
+    }
+    total_used += w.used;
+    out.windows.push_back(w);
+  }
+  out.outside = n - std::min(n, covered);
+
+  out.x_s.reserve(total_used);
+  out.y_V.reserve(total_used);
+  for (SegmentWindow& w : out.windows) {
+    w.offset = out.x_s.size();
+    for (std::size_t i = w.first; i < w.end; ++i) {
+      if (!std::isfinite(cap_V[i])) continue;
+      out.x_s.push_back(time.at(i) - w.start_s);
+      out.y_V.push_back(cap_V[i]);
+    }
+  }
+  return out;
+}
+
+}  // namespace benchtau
