@@ -1,0 +1,20 @@
+// benchtau: exact percentiles of a large set of draws, selected in place.
+#pragma once
+
+#include <span>
+
+namespace benchtau {
+
+// The percentiles (each in [0, 100]) of the values of x that are not NaN,
+// each interpolated linearly between the two nearest order statistics at
+// rank p / 100 (count - 1), as NumPy's default does. Reorders x. out[i] is
+// NaN when x holds no number.
+//
+// The order statistics are exact. A strided sample of x brackets each wanted
+// rank by value, one pass over x counts what lies below each bracket and
+// keeps what lies inside it, and std::nth_element picks the ranks among the
+// kept values; a bracket that misses its rank (rare) falls back to
+// std::nth_element over all the values.
+void percentiles_of(std::span<double> x, std::span<const double> percents, std::span<double> out);
+
+}  // namespace benchtau
