@@ -144,47 +144,11 @@ class PartParser {
       bool ok = false;
       if constexpr (!DecimalComma) {
         // The common case: a plain number, then a separator or the line end.
+        // It is always finite, so no branch here waits for its division.
         const char* ptr = q;
-        bool parsed = parse_short_decimal(ptr, end, v);
-        if (!parsed) {
-          const auto lib = std::from_chars(q, end, v);
-          parsed = lib.ec == std::errc() && lib.ptr != q;
-          ptr = lib.ptr;
-        }
-        if (parsed) {
-          const char* after = ptr;
-          if constexpr (Sep != ' ') {
-            while (after < end && is_pad(*after)) ++after;
-          }
-          if (after == end || *after == Sep || is_eol(after, end) ||
-              (Sep == ' ' && (*after == '\t'))) {
-            if (std::isfinite(v)) {
-              ok = true;
-              q = after;
-            }
-          }
-        }
+        if (parse_short_decimal(ptr, end, v)) ok = ends_cell(ptr, end, q);
       }
-      if (!ok) {
-        const char* stop = cell_end(q, end);
-        const auto cell =
-            parse_cell(std::string_view(q, static_cast<std::size_t>(stop - q)), DecimalComma);
-        if (cell.kind == CellKind::number) {
-          v = cell.value;
-        } else if (is_missing(cell.kind)) {
-          v = nan_value;
-        } else {
-          bad_cell(line_begin, field, stop, c, cell.kind);
-        }
-        q = stop;
-        if constexpr (Sep != ' ') {
-          while (q < end && is_pad(*q)) ++q;
-        }
-      }
-      if (std::isnan(v)) {
-        auto& g = out_.gaps[c];
-        if (g.missing++ == 0) g.first_line = line_;
-      }
+      if (!ok) v = other_cell(line_begin, field, q, end, c);
       target_.columns[c][r] = v * layout_.to_si[c];
       if (layout_.watch && *layout_.watch == c) watch_at = field;
 
@@ -217,6 +181,50 @@ class PartParser {
     if (r == 0) out_.first_row_line = line_;
     out_.rows = r + 1;
     return skip_line_end(q, end);
+  }
+
+  // Whether a number that ended at ptr ends its cell; if so, q moves to the
+  // separator or line end after it.
+  static bool ends_cell(const char* ptr, const char* end, const char*& q) {
+    const char* after = ptr;
+    if constexpr (Sep != ' ') {
+      while (after < end && is_pad(*after)) ++after;
+    }
+    if (after == end || *after == Sep || is_eol(after, end) || (Sep == ' ' && *after == '\t')) {
+      q = after;
+      return true;
+    }
+    return false;
+  }
+
+  // Any other cell: a number only std::from_chars reads, a gap, or an error.
+  // Moves q to the separator or line end after the cell.
+  double other_cell(const char* line_begin, const char* field, const char*& q, const char* end,
+                    std::size_t c) {
+    double v = nan_value;
+    if constexpr (!DecimalComma) {
+      const auto lib = std::from_chars(q, end, v);
+      if (lib.ec == std::errc() && lib.ptr != q && std::isfinite(v) && ends_cell(lib.ptr, end, q)) {
+        return v;
+      }
+    }
+    const char* stop = cell_end(q, end);
+    const auto cell =
+        parse_cell(std::string_view(q, static_cast<std::size_t>(stop - q)), DecimalComma);
+    if (cell.kind == CellKind::number) {
+      v = cell.value;
+    } else if (is_missing(cell.kind)) {
+      v = nan_value;
+      auto& g = out_.gaps[c];
+      if (g.missing++ == 0) g.first_line = line_;
+    } else {
+      bad_cell(line_begin, field, stop, c, cell.kind);
+    }
+    q = stop;
+    if constexpr (Sep != ' ') {
+      while (q < end && is_pad(*q)) ++q;
+    }
+    return v;
   }
 
   void watch(const char* line_begin, const char* field, std::size_t r) {
