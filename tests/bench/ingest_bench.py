@@ -90,7 +90,22 @@ def mb(n):
     return n / 1e6
 
 
+def ensure_numpy():
+    """Runs the script again under Debian's python3 when the one on PATH lacks
+    NumPy or pandas (a private interpreter can shadow it)."""
+    try:
+        import numpy  # noqa: F401
+        import pandas  # noqa: F401
+        return
+    except ImportError:
+        pass
+    system = "/usr/bin/python3"
+    if os.path.realpath(sys.executable) != os.path.realpath(system) and os.access(system, os.X_OK):
+        os.execv(system, [system] + sys.argv)
+
+
 def main():
+    ensure_numpy()
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--build", default="build", help="build directory (default: build)")
     parser.add_argument("--program", help="benchtau_ingest_bench (default: in the build directory)")
