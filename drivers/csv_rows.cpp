@@ -103,11 +103,12 @@ ParsedRows parse_rows(const ByteSource& source, std::size_t data_begin, std::siz
   ParsedRows out;
   out.parts = parts;
   out.columns.resize(layout.columns);
-  run_parts(std::min<unsigned>(parts, static_cast<unsigned>(layout.columns)), [&](unsigned k) {
-    // Zero-filling hundreds of megabytes is worth spreading over the threads.
-    for (std::size_t c = k; c < layout.columns; c += std::min<std::size_t>(parts, layout.columns)) {
+  // Zero-filling hundreds of megabytes is worth spreading over the threads,
+  // one a column so that three columns on two cores still share out evenly.
+  const unsigned fillers = parts == 1 ? 1u : static_cast<unsigned>(layout.columns);
+  run_parts(fillers, [&](unsigned k) {
+    for (std::size_t c = k; c < layout.columns; c += fillers)
       allocate_column(out.columns[c], capacity);
-    }
   });
 
   std::vector<PartOutput> results(parts);

@@ -70,6 +70,13 @@ TEST_CASE("csv internals: the short-decimal fast path agrees bit for bit with st
       double mine = 0.0;
       if (!csv::parse_short_decimal(p, end, mine)) continue;
       ++fast;
+      // Without bounds checks, before a line end, it reads the same.
+      const std::string line = s + "\n";
+      const char* q = line.data();
+      double unchecked = 0.0;
+      REQUIRE(csv::parse_short_decimal<false>(q, nullptr, unchecked));
+      REQUIRE(q - line.data() == p - s.data());
+      REQUIRE(same_bits(unchecked, mine));
       double lib = 0.0;
       const auto r = std::from_chars(s.data(), end, lib);
       CAPTURE(s);
