@@ -9,6 +9,7 @@
 
 #include <algorithm>
 #include <cerrno>
+#include <charconv>
 #include <cmath>
 #include <cstring>
 
@@ -64,7 +65,8 @@ TimeChoice choose_time(const std::vector<ColumnName>& names, bool has_header,
     const bool digits =
         std::all_of(forced.begin(), forced.end(), [](char c) { return c >= '0' && c <= '9'; });
     if (digits) {
-      const auto index = std::stoul(forced.size() > 6 ? std::string("0") : forced);
+      std::size_t index = 0;  // stays 0 when the number overflows
+      std::from_chars(forced.data(), forced.data() + forced.size(), index);
       if (index < 1 || index > columns) {
         throw InputError(source, 0, 0,
                          fmt::format("time column {} does not exist: the file has {}", forced,

@@ -6,6 +6,7 @@
 #include <bit>
 #include <cmath>
 #include <cstdint>
+#include <optional>
 #include <vector>
 
 namespace benchtau::csv {
@@ -77,18 +78,20 @@ std::array<double, 2> ranks(std::span<const double> t, std::size_t lo, std::size
     }
   }
   std::sort(between.begin(), between.end());
-  const auto pick = [&](std::size_t rank, double& out) {
-    if (rank < below) return false;
+  // The step of a rank, if the pass pinned it down.
+  const auto pick = [&](std::size_t rank) -> std::optional<double> {
+    if (rank < below) return std::nullopt;
     rank -= below;
-    if (rank < at_low) return out = low, true;
+    if (rank < at_low) return low;
     rank -= at_low;
-    if (rank < between.size()) return out = between[rank], true;
+    if (rank < between.size()) return between[rank];
     rank -= between.size();
-    if (rank < at_high) return out = high, true;
-    return false;
+    if (rank < at_high) return high;
+    return std::nullopt;
   };
-  std::array<double, 2> r{};
-  if (pick(lo, r[0]) && pick(hi, r[1])) return r;
+  const auto a = pick(lo);
+  const auto b = pick(hi);
+  if (a && b) return {*a, *b};
   return {kth_by_radix(t, lo), kth_by_radix(t, hi)};
 }
 

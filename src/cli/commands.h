@@ -15,6 +15,9 @@ enum Exit : int {
 // Each adds its subcommand; when it runs, it stores its exit code in exit_code.
 void add_measure_command(CLI::App& app, int& exit_code);
 void add_safety_command(CLI::App& app, int& exit_code);
+void add_ports_command(CLI::App& app, int& exit_code);
+void add_watch_command(CLI::App& app, int& exit_code);
+void add_capture_command(CLI::App& app, int& exit_code);
 
 // The bench cautions, shared by `benchtau safety` and the help text.
 extern const char* const kSafetyText;
