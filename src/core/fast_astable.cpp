@@ -1,0 +1,75 @@
+// benchtau: the decoupled two-resistor astable's cycle in closed form, for Monte Carlo draws.
+#include "src/core/fast_astable.h"
+
+#include <cmath>
+
+namespace benchtau {
+namespace {
+
+bool finite_positive(double x) { return x > 0.0 && x < kOpen; }
+bool open_or_positive(double x) { return x > 0.0; }  // kOpen is absent
+
+}  // namespace
+
+// The algebra is circuit_model.cpp's Thevenin sums written out for these
+// branches: the same cycle, fewer divisions.
+std::optional<OutputValues> fast_astable_outputs(const Circuit& c) {
+  const CircuitValues& v = c.v;
+  const TimerFigures& f = v.chip;
+  if (c.kind != CircuitKind::astable_two_resistor || c.control != ControlWiring::decoupled ||
+      (c.reset != ResetWiring::supply && c.reset != ResetWiring::open))
+    return std::nullopt;
+  if (!finite_positive(v.upper_ohm) || !finite_positive(v.lower_ohm) || !finite_positive(v.cap_F) ||
+      !finite_positive(f.divider_ohm) || !finite_positive(f.discharge_on_ohm) ||
+      v.load_ohm < kOpen || !open_or_positive(v.probe_ctl_ohm) ||
+      !open_or_positive(v.probe_cap_ohm) || !open_or_positive(v.leak_ohm) ||
+      v.supply_V < f.reset_threshold_V)
+    return std::nullopt;
+
+  // Control pin: 2/3 of the supply behind 2/3 of the divider, loaded by a probe.
+  const double vs = v.supply_V;
+  const double rd = 2.0 / 3.0 * f.divider_ohm;
+  const double upper_V = v.probe_ctl_ohm < kOpen
+                             ? 2.0 / 3.0 * vs * v.probe_ctl_ohm / (v.probe_ctl_ohm + rd)
+                             : 2.0 / 3.0 * vs;
+  const double lower_V = 0.5 * upper_V;
+
+  // What the capacitor node carries besides the timing path: leakage and a
+  // probe as one shunt conductance, and the currents the node's pins draw.
+  const double shunt_S = (v.leak_ohm < kOpen ? 1.0 / v.leak_ohm : 0.0) +
+                         (v.probe_cap_ohm < kOpen ? 1.0 / v.probe_cap_ohm : 0.0);
+  const double drawn_A = v.leak_A + f.threshold_current_A + f.trigger_current_A;
+  // A source e behind r into the node: e' = (e - drawn r) / (1 + shunt r), r' = r / (1 + shunt r).
+  auto into_node = [&](double e, double r, double& e_out, double& r_out) {
+    const double k = 1.0 / (1.0 + shunt_S * r);
+    e_out = (e - drawn_A * r) * k;
+    r_out = r * k;
+  };
+
+  // Charging: the supply through R1 + R2.
+  double high_e = 0.0, high_r = 0.0;
+  into_node(vs, v.upper_ohm + v.lower_ohm, high_e, high_r);
+  // Discharging: R1 to the supply and the switch (its saturation behind its
+  // resistance) meet at the discharge pin, then R2.
+  const double r1 = v.upper_ohm, ron = f.discharge_on_ohm;
+  const double inv = 1.0 / (r1 + ron);
+  const double pin_V = (vs * ron + f.discharge_sat_V * r1) * inv;
+  double low_e = 0.0, low_r = 0.0;
+  into_node(pin_V, r1 * ron * inv + v.lower_ohm, low_e, low_r);
+
+  if (!(upper_V > lower_V) || !(high_e - upper_V > 0.0) || !(lower_V - low_e > 0.0))
+    return std::nullopt;
+
+  // Each phase switches a propagation delay after its crossing (as in the model).
+  const double tpd = f.propagation_delay_s;
+  const double th = high_r * v.cap_F, tl = low_r * v.cap_F;
+  const double start_V = low_e + (lower_V - low_e) * std::exp(-tpd / tl);
+  const double peak_V = high_e + (upper_V - high_e) * std::exp(-tpd / th);
+  const double high_s = th * std::log((high_e - start_V) / (high_e - upper_V)) + tpd;
+  const double low_s = tl * std::log((peak_V - low_e) / (lower_V - low_e)) + tpd;
+  const double period_s = high_s + low_s;
+  const double per = 1.0 / period_s;
+  return OutputValues{high_s, low_s, period_s, per, high_s * per, peak_V, start_V};
+}
+
+}  // namespace benchtau

@@ -1,0 +1,155 @@
+// benchtau: the seeded, block-parallel Monte Carlo of a prediction, and its statistics.
+#include <algorithm>
+#include <atomic>
+#include <cmath>
+#include <functional>
+#include <thread>
+
+#include "src/core/fast_astable.h"
+#include "src/core/order_statistics.h"
+#include "src/core/random.h"
+#include "src/core/spread.h"
+
+namespace benchtau {
+namespace {
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+unsigned thread_count(unsigned asked, std::size_t jobs) {
+  unsigned n = asked != 0 ? asked : std::max(1U, std::thread::hardware_concurrency());
+  return static_cast<unsigned>(std::min<std::size_t>(n, std::max<std::size_t>(jobs, 1)));
+}
+
+// Runs job(0) .. job(jobs - 1) on threads workers, each job taken once. Which
+// worker runs a job never changes what the job computes.
+void parallel_for(std::size_t jobs, unsigned threads, const std::function<void(std::size_t)>& job) {
+  const unsigned n = thread_count(threads, jobs);
+  std::atomic<std::size_t> next{0};
+  auto worker = [&] {
+    for (std::size_t j = next++; j < jobs; j = next++) job(j);
+  };
+  if (n <= 1) {
+    worker();
+    return;
+  }
+  std::vector<std::jthread> pool;
+  pool.reserve(n - 1);
+  for (unsigned t = 1; t < n; ++t) pool.emplace_back(worker);
+  worker();
+}
+
+// A quantity's value for a standard normal z truncated at kSigmasPerTolerance.
+double value_at(const Variation& v, double z) {
+  const double side = z >= 0.0 ? v.high - v.nominal : v.nominal - v.low;
+  return v.nominal + z / kSigmasPerTolerance * side;
+}
+
+// Count, mean and sum of squared deviations, combined in a fixed order
+// (Chan, Golub and LeVeque's pairwise update) so that sums never depend on threads.
+struct Moments {
+  double count = 0.0;
+  double mean = 0.0;
+  double m2 = 0.0;
+
+  void merge(const Moments& o) {
+    if (o.count == 0.0) return;
+    const double n = count + o.count;
+    const double d = o.mean - mean;
+    mean += d * o.count / n;
+    m2 += o.m2 + d * d * count * o.count / n;
+    count = n;
+  }
+};
+
+Moments block_moments(std::span<const double> x) {
+  Moments m;
+  double sum = 0.0;
+  for (double v : x) {
+    if (!std::isnan(v)) {
+      sum += v;
+      m.count += 1.0;
+    }
+  }
+  if (m.count == 0.0) return m;
+  m.mean = sum / m.count;
+  for (double v : x) {
+    if (!std::isnan(v)) m.m2 += (v - m.mean) * (v - m.mean);
+  }
+  return m;
+}
+
+}  // namespace
+
+Draws monte_carlo_draws(const Circuit& nominal, std::span<const Variation> variations,
+                        const MonteCarloOptions& options) {
+  Draws d;
+  const std::size_t n = options.draws;
+  for (std::vector<double>& v : d.values) v.assign(n, kNaN);
+  const std::size_t blocks = (n + kBlockDraws - 1) / kBlockDraws;
+  std::vector<std::size_t> stopped(blocks, 0);
+  const bool fast = fast_astable_outputs(nominal).has_value();
+  parallel_for(blocks, options.threads, [&](std::size_t b) {
+    Xoshiro256 rng(options.seed, b);
+    Circuit c = nominal;
+    const std::size_t end = std::min(n, (b + 1) * kBlockDraws);
+    for (std::size_t i = b * kBlockDraws; i < end; ++i) {
+      for (const Variation& v : variations) {
+        v.apply(c, value_at(v, truncated_normal(rng, kSigmasPerTolerance)));
+      }
+      std::optional<OutputValues> o = fast ? fast_astable_outputs(c) : std::nullopt;
+      if (!o) {
+        const CyclePrediction p = predict_cycle(c);
+        if (!p.oscillates) {
+          ++stopped[b];
+          continue;
+        }
+        o = outputs_of(p);
+      }
+      for (std::size_t k = 0; k < kOutputs; ++k) d.values[k][i] = (*o)[k];
+    }
+  });
+  for (std::size_t s : stopped) d.stopped += s;
+  return d;
+}
+
+MonteCarlo summarise_draws(Draws&& draws, std::uint64_t seed, unsigned threads) {
+  MonteCarlo mc;
+  mc.draws = draws.size();
+  mc.stopped = draws.stopped;
+  mc.seed = seed;
+  const std::size_t blocks = (mc.draws + kBlockDraws - 1) / kBlockDraws;
+  // Moments per (output, block) in parallel, then merged in block order.
+  std::vector<Moments> part(kOutputs * blocks);
+  parallel_for(kOutputs * blocks, threads, [&](std::size_t j) {
+    const std::size_t k = j / blocks, b = j % blocks;
+    const std::size_t begin = b * kBlockDraws, end = std::min(mc.draws, begin + kBlockDraws);
+    part[j] = block_moments(std::span(draws.values[k]).subspan(begin, end - begin));
+  });
+  std::array<double, kOutputs> counts{};
+  auto part_count = [&](std::size_t k) { return counts[k]; };
+  for (std::size_t k = 0; k < kOutputs; ++k) {
+    Moments m;
+    for (std::size_t b = 0; b < blocks; ++b) m.merge(part[k * blocks + b]);
+    OutputStats& s = mc.outputs[k];
+    counts[k] = m.count;
+    if (m.count > 0.0) {
+      s.mean = m.mean;
+      s.std = std::sqrt(m.m2 / m.count);
+    }
+  }
+  // The k-th smallest value is the same whichever order selection meets the
+  // values in, so the percentiles too are independent of the threads.
+  parallel_for(kOutputs, threads, [&](std::size_t k) {
+    mc.outputs[k].count = static_cast<std::size_t>(part_count(k));
+    percentiles_of(draws.values[k], kPercentiles, mc.outputs[k].percentile);
+  });
+  return mc;
+}
+
+MonteCarlo monte_carlo(const Circuit& nominal, std::span<const Variation> variations,
+                       const MonteCarloOptions& options) {
+  return summarise_draws(monte_carlo_draws(nominal, variations, options), options.seed,
+                         options.threads);
+}
+
+}  // namespace benchtau
