@@ -21,16 +21,17 @@ namespace {
 using detail::RawSegment;
 using detail::SolveSettings;
 
-// Fits every window on its own, each from its previous fit when that converged. Segments are
-// independent problems, so they are dealt round-robin to the threads (each slot of raws is
-// written by one thread only).
-void fit_each(const SegmentSamples& s, const SolveSettings& st, std::vector<RawSegment>& raws,
-              int threads) {
-  const std::size_t n = s.windows.size();
+// Fits the windows listed on their own, each from its previous fit when that converged.
+// Segments are independent problems, so they are dealt round-robin to the threads (each slot
+// of raws is written by one thread only).
+void fit_each(const SegmentSamples& s, std::span<const std::size_t> which, const SolveSettings& st,
+              std::vector<RawSegment>& raws, int threads) {
+  const std::size_t n = which.size();
   // A handful of segments is not worth a thread.
   const std::size_t step = n < 8 ? 1 : static_cast<std::size_t>(std::max(1, threads));
   auto work = [&](std::size_t from) {
-    for (std::size_t k = from; k < n; k += step) {
+    for (std::size_t j = from; j < n; j += step) {
+      const std::size_t k = which[j];
       const SegmentWindow& w = s.windows[k];
       const std::array<double, 3> start = raws[k].params;
       raws[k] = detail::solve_segment(s.x(w), s.y(w), st, raws[k].converged ? &start : nullptr);
@@ -60,6 +61,14 @@ void fit_each(const SegmentSamples& s, const SolveSettings& st, std::vector<RawS
   }  // joins
   for (const std::exception_ptr& e : errors)
     if (e) std::rethrow_exception(e);
+}
+
+// Up to m window indices spread evenly over the record.
+std::vector<std::size_t> spread(std::size_t n, std::size_t m) {
+  std::vector<std::size_t> ids;
+  const std::size_t take = std::min(n, m);
+  for (std::size_t j = 0; j < take; ++j) ids.push_back(j * n / take);
+  return ids;
 }
 
 // The noise sigma from the first pass's residuals: a MAD (robust to glitches), scaled up for
@@ -92,24 +101,24 @@ double median(std::vector<double> v) {
 
 PhaseFit fit_phase(Phase phase, const SegmentSamples& s, const std::vector<RawSegment>& raws,
                    const SolveSettings& st) {
-  // Every segment with a converged fit takes part, identifiable on its own or not: a short
-  // segment still says something about a shared tau. The start is the median of the
-  // segments that are identifiable, or failing that of all of them.
+  // Every segment with enough samples that is not flat takes part, identifiable on its own or
+  // not: a short segment still says something about a shared tau. The start is the median of
+  // the segments fitted well on their own, or failing that of wherever the others ended.
   std::vector<std::size_t> ids;
-  std::vector<double> log_taus, vinfs, all_log_taus, all_vinfs;
+  std::vector<double> log_taus, vinfs, other_log_taus, other_vinfs;
   for (std::size_t k = 0; k < raws.size(); ++k) {
-    if (s.windows[k].phase != phase || !raws[k].converged) continue;
+    const RawSegment& raw = raws[k];
+    if (s.windows[k].phase != phase || raw.status == FitStatus::too_few_samples ||
+        raw.status == FitStatus::flat)
+      continue;
     ids.push_back(k);
-    all_log_taus.push_back(raws[k].params[0]);
-    all_vinfs.push_back(raws[k].params[1]);
-    if (raws[k].status == FitStatus::ok) {
-      log_taus.push_back(raws[k].params[0]);
-      vinfs.push_back(raws[k].params[1]);
-    }
+    if (!std::isfinite(raw.params[0]) || !std::isfinite(raw.params[1])) continue;
+    (raw.status == FitStatus::ok ? log_taus : other_log_taus).push_back(raw.params[0]);
+    (raw.status == FitStatus::ok ? vinfs : other_vinfs).push_back(raw.params[1]);
   }
   if (log_taus.empty()) {
-    log_taus = std::move(all_log_taus);
-    vinfs = std::move(all_vinfs);
+    log_taus = std::move(other_log_taus);
+    vinfs = std::move(other_vinfs);
   }
   return detail::solve_phase(phase, s, ids, median(log_taus), median(vinfs), st);
 }
@@ -170,15 +179,20 @@ SegmentFitResult fit_segments(const TimeBase& time, std::span<const double> cap_
   st.loss = o.huber_sigmas > 0.0 ? &huber : nullptr;
 
   std::vector<RawSegment> raws(s.windows.size());
+  const std::vector<std::size_t> all = spread(s.windows.size(), s.windows.size());
   if (o.fixed_sigma_V) {
     st.sigma_V = *o.fixed_sigma_V;
-    fit_each(s, st, raws, o.threads);
+    fit_each(s, all, st, raws, o.threads);
   } else {
-    // First pass on a sigma from the data alone; then the MAD of its residuals, and refit.
+    // First pass on a sigma from the data alone, without covariances; then the MAD of its
+    // residuals, and the real pass. The first pass needs residuals, not every segment: 256
+    // segments spread over the record give tens of thousands, a MAD good to about 1 %.
     st.sigma_V = std::max(r.sigma_floor_V, second_difference_sigma_V(cap_V));
-    fit_each(s, st, raws, o.threads);
+    st.covariance = false;
+    fit_each(s, spread(s.windows.size(), 256), st, raws, o.threads);
     st.sigma_V = std::max(r.sigma_floor_V, residual_sigma_V(s, raws));
-    fit_each(s, st, raws, o.threads);
+    st.covariance = true;
+    fit_each(s, all, st, raws, o.threads);
   }
   r.noise_sigma_V = st.sigma_V;
 

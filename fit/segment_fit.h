@@ -85,9 +85,10 @@ struct SegmentFitOptions {
   // A segment whose first and last thirds differ by less than this many standard errors of
   // that difference is flat.
   double flat_sigmas = 5.0;
-  // Above this relative standard error of tau the likelihood is far from quadratic over the
-  // 1-sigma interval, and the interval stops meaning 68 %: tau is reported as undetermined.
-  double max_relative_tau_error = 0.5;
+  // Above this relative standard error of tau, the likelihood in ln(tau) is far from
+  // quadratic over the 1-sigma interval (and a weakly determined fit may sit in a spurious
+  // minimum), so the interval stops meaning 68 %: tau is reported as undetermined.
+  double max_relative_tau_error = 0.2;
   int threads = 2;
   bool joint = true;  // also fit each phase jointly
 };

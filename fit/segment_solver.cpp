@@ -12,6 +12,7 @@
 #include <Eigen/Dense>
 
 #include "fit/exponential_segment.h"
+#include "fit/linearized_segment.h"
 
 namespace benchtau::detail {
 namespace {
@@ -19,7 +20,9 @@ namespace {
 ceres::Solver::Options solver_options(ceres::LinearSolverType type, int threads) {
   ceres::Solver::Options o;
   o.linear_solver_type = type;
-  o.max_num_iterations = 200;
+  // A sound segment converges in under ten iterations; one that needs fifty is chasing tau
+  // off to infinity along a straight line, and should stop and say so.
+  o.max_num_iterations = 50;
   // Tight, so that two independent solvers land on the same minimum to well under 1e-6.
   o.function_tolerance = 1e-14;
   o.gradient_tolerance = 1e-16;
@@ -88,22 +91,31 @@ std::array<double, 3> initial_guess(std::span<const double> x, std::span<const d
     if (d1 * d2 > 0.0 && ratio > 1.0 && std::isfinite(ratio))
       tau = 0.5 * (x3 - x1) / std::log(ratio);  // the mean of the two window spacings
   }
-  // Vinf and A by least squares at that tau (2 x 2 normal equations).
-  const double inv_tau = 1.0 / tau;
-  double s1 = 0, se = 0, see = 0, sy = 0, sey = 0;
-  for (std::size_t i = 0; i < x.size(); ++i) {
-    const double e = std::exp(-x[i] * inv_tau);
-    s1 += 1.0;
-    se += e;
-    see += e * e;
-    sy += y[i];
-    sey += e * y[i];
-  }
-  const double det = s1 * see - se * se;
+  // Noise can make the ratio large (tau far too short) or near 1 (far too long).
+  if (span_s > 0.0) tau = std::clamp(tau, span_s / 50.0, 1e6 * span_s);
+  // Vinf and A by least squares at that tau (2 x 2 normal equations). Where tau is so long
+  // that exp(-x / tau) and the constant are one column, start from tau = the span instead:
+  // A = 0 would be a stationary point (no slope in ln(tau)) and the solver would stay there.
   double vinf = mean(y), amp = 0.0;
-  if (det > 1e-12 * s1 * see) {
-    vinf = (see * sy - se * sey) / det;
-    amp = (s1 * sey - se * sy) / det;
+  for (int attempt = 0; attempt < 2; ++attempt) {
+    const double inv_tau = 1.0 / tau;
+    double s1 = 0, se = 0, see = 0, sy = 0, sey = 0;
+    for (std::size_t i = 0; i < x.size(); ++i) {
+      const double e = std::exp(-x[i] * inv_tau);
+      s1 += 1.0;
+      se += e;
+      see += e * e;
+      sy += y[i];
+      sey += e * y[i];
+    }
+    const double det = s1 * see - se * se;
+    if (det > 1e-12 * s1 * see) {
+      vinf = (see * sy - se * sey) / det;
+      amp = (s1 * sey - se * sy) / det;
+      break;
+    }
+    if (!(span_s > 0.0)) break;
+    tau = span_s;
   }
   return {std::log(tau), vinf, amp};
 }
@@ -130,13 +142,21 @@ RawSegment solve_segment(std::span<const double> x, std::span<const double> y,
   ceres::Solver::Summary summary;
   ceres::Solve(solver_options(ceres::DENSE_QR, 1), &problem, &summary);
   out.iterations = static_cast<int>(summary.iterations.size());
-  out.converged =
-      converged(summary) && std::isfinite(p[0]) && std::isfinite(p[1]) && std::isfinite(p[2]);
-  if (!out.converged) {
+  const bool finite = std::isfinite(p[0]) && std::isfinite(p[1]) && std::isfinite(p[2]);
+  out.converged = converged(summary) && finite;
+  // Out of iterations, the usual reason is a valley with no bottom (tau running off along a
+  // straight line): if the covariance there shows it (rank-deficient, or tau's error past the
+  // limit), say so rather than just "failed".
+  const bool out_of_iterations = summary.termination_type == ceres::NO_CONVERGENCE && finite;
+  if (!out.converged && !(out_of_iterations && st.covariance)) {
     out.status = FitStatus::no_convergence;
     return out;
   }
-  out.rms_V = rms_V(x, y, p[0], p[1], p[2]);
+  if (out.converged) out.rms_V = rms_V(x, y, p[0], p[1], p[2]);
+  if (!st.covariance) {
+    out.status = FitStatus::ok;
+    return out;
+  }
 
   // A small dense problem: the SVD both inverts J'J and tells a rank-deficient Jacobian
   // (condition number above 1e7) from a merely large covariance.
@@ -150,8 +170,10 @@ RawSegment solve_segment(std::span<const double> x, std::span<const double> y,
   }
   covariance.GetCovarianceMatrix(blocks, out.covariance.data());  // symmetric: order moot
   const double se_log_tau = std::sqrt(out.covariance(0, 0));
-  out.status =
-      se_log_tau <= st.max_relative_tau_error ? FitStatus::ok : FitStatus::tau_undetermined;
+  if (se_log_tau > st.max_relative_tau_error)
+    out.status = FitStatus::tau_undetermined;  // converged or not, the data leave tau open
+  else
+    out.status = out.converged ? FitStatus::ok : FitStatus::no_convergence;
   return out;
 }
 
@@ -185,31 +207,73 @@ PhaseFit solve_phase(Phase phase, const SegmentSamples& s, std::span<const std::
   if (n == 0 || !std::isfinite(log_tau0) || !std::isfinite(vinf0_V)) return f;
 
   double log_tau = log_tau0, vinf = vinf0_V;
+  bool solved = false;
   std::vector<double> amp(n);
   std::deque<ExponentialSegmentCost> costs;  // built in place; addresses stay put
-  ceres::Problem problem(problem_options());
-  auto ordering = std::make_shared<ceres::ParameterBlockOrdering>();
   for (std::size_t k = 0; k < n; ++k) {
     const SegmentWindow& w = s.windows[ids[k]];
     amp[k] = amplitude_at(s.x(w), s.y(w), log_tau, vinf);
     costs.emplace_back(s.x(w), s.y(w), st.sigma_V, st.loss);
-    problem.AddResidualBlock(&costs.back(), nullptr, &log_tau, &vinf, &amp[k]);
-    ordering->AddElementToGroup(&amp[k], 0);  // eliminated first: one per residual block
     f.used += w.used;
   }
-  ordering->AddElementToGroup(&log_tau, 1);
-  ordering->AddElementToGroup(&vinf, 1);
+  {
+    ceres::Problem problem(problem_options());
+    auto ordering = std::make_shared<ceres::ParameterBlockOrdering>();
+    for (std::size_t k = 0; k < n; ++k) {
+      problem.AddResidualBlock(&costs[k], nullptr, &log_tau, &vinf, &amp[k]);
+      ordering->AddElementToGroup(&amp[k], 0);  // eliminated first: one per residual block
+    }
+    ordering->AddElementToGroup(&log_tau, 1);
+    ordering->AddElementToGroup(&vinf, 1);
+    // The amplitudes are the Schur complement's eliminated blocks; what is left is 2 x 2.
+    ceres::Solver::Options so = solver_options(ceres::DENSE_SCHUR, st.threads);
+    so.linear_solver_ordering = ordering;
+    ceres::Solver::Summary summary;
+    ceres::Solve(so, &problem, &summary);
+    f.iterations = static_cast<int>(summary.iterations.size());
+    solved = converged(summary);
+    // Out of iterations: the covariance below may still say why (as for one segment).
+    const bool finite =
+        std::isfinite(log_tau) && std::isfinite(vinf) &&
+        std::all_of(amp.begin(), amp.end(), [](double a) { return std::isfinite(a); });
+    if (!finite || !(solved || summary.termination_type == ceres::NO_CONVERGENCE)) {
+      f.status = FitStatus::no_convergence;
+      return f;
+    }
+  }
 
-  // The amplitudes are the Schur complement's eliminated blocks; what is left is 2 x 2.
-  ceres::Solver::Options so = solver_options(ceres::DENSE_SCHUR, st.threads);
-  so.linear_solver_ordering = ordering;
-  ceres::Solver::Summary summary;
-  ceres::Solve(so, &problem, &summary);
-  f.iterations = static_cast<int>(summary.iterations.size());
-  if (!converged(summary) || !std::isfinite(log_tau) || !std::isfinite(vinf)) {
+  // The covariance, on the same parameters with each segment reduced to its 3 x 3 factor
+  // (linearized_segment.h): the same J'J and rank, without factoring a million rows.
+  std::deque<LinearizedSegmentCost> reduced;
+  ceres::Problem problem(problem_options());
+  for (std::size_t k = 0; k < n; ++k) {
+    reduced.emplace_back(costs[k], std::array<double, 3>{log_tau, vinf, amp[k]});
+    problem.AddResidualBlock(&reduced.back(), nullptr, &log_tau, &vinf, &amp[k]);
+  }
+  ceres::Covariance::Options co;
+  co.algorithm_type = ceres::SPARSE_QR;  // rank-revealing, and the Jacobian is sparse
+  co.num_threads = std::max(1, st.threads);
+  ceres::Covariance covariance(co);
+  const std::vector<std::pair<const double*, const double*>> pairs = {
+      {&log_tau, &log_tau}, {&log_tau, &vinf}, {&vinf, &vinf}};
+  if (!covariance.Compute(pairs, &problem)) {  // rank(J) is checked over every column
+    f.status = FitStatus::not_identifiable;
+    return f;
+  }
+  Eigen::Matrix2d c;
+  covariance.GetCovarianceBlock(&log_tau, &log_tau, &c(0, 0));
+  covariance.GetCovarianceBlock(&log_tau, &vinf, &c(0, 1));
+  covariance.GetCovarianceBlock(&vinf, &vinf, &c(1, 1));
+  c(1, 0) = c(0, 1);
+  if (std::sqrt(c(0, 0)) > st.max_relative_tau_error) {
+    f.status = FitStatus::tau_undetermined;
+    return f;
+  }
+  if (!solved) {
     f.status = FitStatus::no_convergence;
     return f;
   }
+  f.status = FitStatus::ok;
   f.amp_V = amp;
   double ss = 0.0;
   for (std::size_t k = 0; k < n; ++k) {
@@ -218,70 +282,32 @@ PhaseFit solve_phase(Phase phase, const SegmentSamples& s, std::span<const std::
     ss += r * r * static_cast<double>(w.used);
   }
   f.rms_V = std::sqrt(ss / static_cast<double>(f.used));
-
-  ceres::Covariance::Options co;
-  co.algorithm_type = ceres::SPARSE_QR;  // rank-revealing; the Jacobian is sparse
-  co.num_threads = std::max(1, st.threads);
-  ceres::Covariance covariance(co);
-  std::vector<std::pair<const double*, const double*>> pairs = {
-      {&log_tau, &log_tau}, {&log_tau, &vinf}, {&vinf, &vinf}};
-  pairs.reserve(3 + 3 * n);
-  for (std::size_t k = 0; k < n; ++k) {
-    pairs.emplace_back(&log_tau, &amp[k]);
-    pairs.emplace_back(&vinf, &amp[k]);
-    pairs.emplace_back(&amp[k], &amp[k]);
-  }
-  if (!covariance.Compute(pairs, &problem)) {
-    f.status = FitStatus::not_identifiable;
-    return f;
-  }
-  Eigen::Matrix2d c_tt;
-  covariance.GetCovarianceBlock(&log_tau, &log_tau, &c_tt(0, 0));
-  covariance.GetCovarianceBlock(&log_tau, &vinf, &c_tt(0, 1));
-  covariance.GetCovarianceBlock(&vinf, &vinf, &c_tt(1, 1));
-  c_tt(1, 0) = c_tt(0, 1);
-  if (std::sqrt(c_tt(0, 0)) > st.max_relative_tau_error) {
-    f.status = FitStatus::tau_undetermined;
-    return f;
-  }
-  f.status = FitStatus::ok;
   const double tau = std::exp(log_tau);
-  f.tau_s = {tau, tau * std::sqrt(c_tt(0, 0))};
-  f.vinf_V = estimate(vinf, c_tt(1, 1));
+  f.tau_s = {tau, tau * std::sqrt(c(0, 0))};
+  f.vinf_V = estimate(vinf, c(1, 1));
 
-  // The mean turnaround voltages are functions of every amplitude, so their variance needs
-  // cov(A_j, A_k) for j != k too. No residual block holds two amplitudes, so J'J's amplitude
-  // block is diagonal, and the block inverse gives those cross terms from blocks already
-  // computed: cov(A_j, A_k) = c_j' C^-1 c_k, with c_k = cov(theta, A_k), C = cov(theta),
-  // theta = (ln tau, Vinf). Checked against a dense inverse of J'J in the tests.
-  const Eigen::Matrix2d c_tt_inv = c_tt.inverse();
-  std::vector<Eigen::Vector2d> c_ta(n);
-  std::vector<double> c_aa(n);
-  for (std::size_t k = 0; k < n; ++k) {
-    covariance.GetCovarianceBlock(&log_tau, &amp[k], &c_ta[k](0));
-    covariance.GetCovarianceBlock(&vinf, &amp[k], &c_ta[k](1));
-    covariance.GetCovarianceBlock(&amp[k], &amp[k], &c_aa[k]);
-  }
-  // Variance of (1/n) sum_k [Vinf + A_k g_k] with g_k = exp(-L_k / tau) (end) or 1 (start).
+  // The mean turnaround voltages f = g_t' theta + sum_k g_k A_k (theta = ln tau, Vinf) depend
+  // on every amplitude. No residual block holds two amplitudes, so in J'J = [B E; E' D] the
+  // amplitude block D is diagonal (d_k), and the block inverse reduces their variance to
+  //   Var f = (g_t - h)' C (g_t - h) + sum_k g_k^2 / d_k,   h = sum_k g_k e_k / d_k,
+  // with C = cov(theta) from ceres::Covariance above and e_k, d_k read off each segment's
+  // R'R. Checked against a dense inverse of the whole J'J in the tests.
   auto mean_turnaround = [&](bool at_end) {
-    Eigen::Vector2d g_t(0.0, 1.0);
-    std::vector<double> g(n);
-    double value = vinf;
+    Eigen::Vector2d g_t(0.0, 1.0), h = Eigen::Vector2d::Zero();
+    double value = vinf, var_amp = 0.0;
+    const double inv_n = 1.0 / static_cast<double>(n);
     for (std::size_t k = 0; k < n; ++k) {
       const double len_s = s.windows[ids[k]].length_s();
       const double e = at_end ? std::exp(-len_s / tau) : 1.0;
-      g[k] = e / static_cast<double>(n);
-      value += amp[k] * g[k];
-      if (at_end) g_t(0) += amp[k] * e * (len_s / tau) / static_cast<double>(n);
+      const double g = e * inv_n;
+      value += amp[k] * g;
+      if (at_end) g_t(0) += amp[k] * e * (len_s / tau) * inv_n;  // d/d ln(tau)
+      const Eigen::Matrix3d jtj = reduced[k].factor().transpose() * reduced[k].factor();
+      const double d = jtj(2, 2);
+      h += g / d * jtj.block<2, 1>(0, 2);
+      var_amp += g * g / d;
     }
-    Eigen::Vector2d w = Eigen::Vector2d::Zero();
-    double var = g_t.dot(c_tt * g_t);
-    for (std::size_t k = 0; k < n; ++k) {
-      w += g[k] * c_ta[k];
-      var += g[k] * g[k] * (c_aa[k] - c_ta[k].dot(c_tt_inv * c_ta[k]));
-    }
-    var += 2.0 * g_t.dot(w) + w.dot(c_tt_inv * w);
-    return estimate(value, var);
+    return estimate(value, (g_t - h).dot(c * (g_t - h)) + var_amp);
   };
   f.start_V = mean_turnaround(false);
   f.end_V = mean_turnaround(true);

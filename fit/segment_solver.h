@@ -22,8 +22,9 @@ struct SolveSettings {
   const ceres::LossFunction* loss = nullptr;
   std::size_t min_samples = 6;
   double flat_sigmas = 5.0;
-  double max_relative_tau_error = 0.5;
-  int threads = 1;  // Ceres's own threads, for the joint problem
+  double max_relative_tau_error = 0.2;
+  int threads = 1;         // Ceres's own threads, for the joint problem
+  bool covariance = true;  // false: skip it (a first pass); a converged fit then reads ok
 };
 
 // One segment's fit as the solver left it.

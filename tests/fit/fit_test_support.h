@@ -1,6 +1,7 @@
 // benchtau: synthetic captures and helpers shared by the segment-fit tests.
 #pragma once
 
+#include <algorithm>
 #include <cstdint>
 #include <filesystem>
 #include <span>
@@ -60,6 +61,33 @@ inline std::span<const double> cap(const SynthRecord& rec) {
 
 inline SegmentFitResult fit(const SynthRecord& rec, const SegmentFitOptions& o = {}) {
   return fit_segments(rec.capture.time, cap(rec), measured_edges(rec), o);
+}
+
+// A capture made by hand: segments of equal length between edges placed half a sample
+// before each segment's first sample, alternating charge (from a rising edge) and
+// discharge. value(charging, x_s, i) gives sample i, x_s seconds after its segment's edge.
+struct Manual {
+  TimeBase time;
+  std::vector<double> cap_V;
+  std::vector<Edge> edges;
+};
+
+template <typename F>
+Manual alternating(std::size_t per_segment, std::size_t segments, double dt_s, F value) {
+  Manual m;
+  m.time.dt_s = dt_s;
+  for (std::size_t k = 0; k <= segments; ++k) {
+    Edge e;
+    e.index = k * per_segment + 1;
+    e.t_s = (static_cast<double>(e.index) - 0.5) * dt_s;
+    e.kind = k % 2 == 0 ? EdgeKind::rising : EdgeKind::falling;
+    m.edges.push_back(e);
+  }
+  for (std::size_t i = 0; i <= segments * per_segment; ++i) {
+    const std::size_t k = std::min(i == 0 ? 0 : (i - 1) / per_segment, segments - 1);
+    m.cap_V.push_back(value(k % 2 == 0, m.time.at(i) - m.edges[k].t_s, i));
+  }
+  return m;
 }
 
 // A scratch file in the build tree (never the source tree).
