@@ -18,7 +18,7 @@ Cell parse_cell(std::string_view cell, bool decimal_comma) {
   if (cell.empty()) return {CellKind::empty, 0.0};
 
   // from_chars knows only '.', so a decimal comma is swapped in a copy.
-  std::array<char, 128> copy{};
+  std::array<char, 128> copy;  // filled before use
   if (decimal_comma) {
     if (cell.size() > copy.size() || cell.find('.') != std::string_view::npos) return {};
     for (std::size_t i = 0; i < cell.size(); ++i) copy[i] = cell[i] == ',' ? '.' : cell[i];
