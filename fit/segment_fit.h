@@ -11,8 +11,11 @@
 // phase, sharing tau and Vinf while each keeps its own A (see exponential_segment.h for the
 // residual and the parameter order). The loss is Huber on residuals in noise sigmas; sigma is
 // estimated from the residuals unless fixed. Standard errors are the Laplace approximation at
-// the minimum, from ceres::Covariance. Results are plain values, in seconds and volts; an
-// estimate that cannot be known is NaN with a status saying why, never a made-up number.
+// the minimum: ceres::Covariance of the parameters, carried to derived figures (tau from
+// ln tau, the turnaround voltages) to first order. They count the samples' noise only: a
+// turnaround voltage also moves with its edge's timing error (slope times that error).
+// Results are plain values, in seconds and volts; an estimate that cannot be known is NaN
+// with a status saying why, never a made-up number.
 #include <cstddef>
 #include <limits>
 #include <optional>
@@ -72,9 +75,10 @@ struct PhaseFit {
 };
 
 struct SegmentFitOptions {
-  // Huber threshold in noise sigmas; 0 for plain least squares. 2 sigma leaves about 95 % of
-  // Gaussian samples on the quadratic part (so the fit loses little efficiency on clean data)
-  // and caps a glitch's pull at 2 sigma instead of its full size.
+  // Huber threshold in noise sigmas; 0 for plain least squares. 2 sigma leaves 95 % of
+  // Gaussian samples on the quadratic part, so the fit loses little on clean data (about 1 %
+  // of efficiency, from memory; 1.345 sigma is the usual 95 %-efficiency choice), and caps a
+  // glitch's pull at 2 sigma instead of its full size.
   double huber_sigmas = 2.0;
   // Use this noise sigma instead of estimating it (one pass, no refit).
   std::optional<double> fixed_sigma_V;

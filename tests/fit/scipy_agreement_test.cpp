@@ -71,7 +71,9 @@ void write_samples(const std::string& file, const SynthRecord& rec, std::span<co
 double relative(double a, double b) { return std::fabs(a - b) / std::fabs(b); }
 
 // A noisy 8-bit capture with glitches pasted into the capacitor node after the edges were
-// found, so that the Huber loss is doing real work in both fitters.
+// found, so that the Huber loss is doing real work in both fitters. SciPy's loss='huber' with
+// f_scale = a is Ceres's HuberLoss(a) on residuals in sigmas (both documented forms are
+// quoted in scipy_segment_fit.py), so the two minimise the same function.
 struct Glitched {
   SynthRecord rec;
   std::vector<Edge> edges;

@@ -71,8 +71,11 @@ def main(path):
         return j
 
     # SciPy's loss='huber' is rho(z) = z for z <= 1, 2 sqrt(z) - 1 otherwise, applied as
-    # f_scale^2 rho(f^2 / f_scale^2) to each residual: the same function as Ceres's
-    # HuberLoss(a) with a = f_scale, on residuals already divided by sigma.
+    # f_scale^2 rho(f^2 / f_scale^2) to each residual (the least_squares docstring, Debian
+    # python3-scipy 1.10.1). Ceres's HuberLoss(a) is a^2 rho(s / a^2) with the same rho
+    # (ceres/loss_function.h, libceres-dev 2.1). So on residuals already divided by sigma,
+    # f_scale = a is the same loss: 2 a |f| - a^2 beyond a, f^2 within. Both minimise half
+    # the sum of it, and both apply it per residual (the C++ cost does so inside the block).
     loss = dict(loss="huber", f_scale=huber) if huber > 0 else dict(loss="linear")
     fit = least_squares(residuals, start(seg, x, y, n), jac=jacobian, method="trf",
                         xtol=1e-15, ftol=1e-15, gtol=1e-15, max_nfev=10000, **loss)

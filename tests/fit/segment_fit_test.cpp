@@ -226,6 +226,23 @@ TEST_CASE("the samples next to each edge are left out by the stated rule") {
   CHECK(accounted(r) == m.cap_V.size());
 }
 
+TEST_CASE("explicit sample times give the same fit as the uniform time base they spell out") {
+  Bench b;
+  b.seed = 61;
+  b.cycles = 6;
+  const SynthRecord rec = synth(b);
+  const std::vector<Edge> edges = measured_edges(rec);
+  TimeBase explicit_times = rec.capture.time;
+  for (std::size_t i = 0; i < rec.capture.samples(); ++i)
+    explicit_times.t_s.push_back(rec.capture.time.at(i));
+  const SegmentFitResult u = fit_segments(rec.capture.time, cap(rec), edges);
+  const SegmentFitResult e = fit_segments(explicit_times, cap(rec), edges);
+  REQUIRE(e.charging.status == FitStatus::ok);
+  CHECK(e.charging.tau_s.value == u.charging.tau_s.value);
+  CHECK(e.discharging.vinf_V.sigma == u.discharging.vinf_V.sigma);
+  CHECK(e.segments.size() == u.segments.size());
+}
+
 TEST_CASE("inconsistent input is refused with an exception, not fitted") {
   TimeBase t;
   t.dt_s = 1e-5;
