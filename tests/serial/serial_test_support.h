@@ -3,6 +3,7 @@
 #pragma once
 
 #include <fcntl.h>
+#include <fmt/format.h>
 #include <stdlib.h>
 #include <termios.h>
 #include <unistd.h>
@@ -184,6 +185,48 @@ bool wait_for(F cond, std::chrono::milliseconds timeout = std::chrono::milliseco
     std::this_thread::sleep_for(std::chrono::milliseconds(10));
   }
   return cond();
+}
+
+}  // namespace benchtau::test
+
+#include <signal.h>
+#include <sys/wait.h>
+
+namespace benchtau::test {
+
+// Starts BENCHTAU_EXE with args, its standard output and error going to the
+// given files (or /dev/null). Returns the child's pid.
+inline pid_t spawn_benchtau(const std::vector<std::string>& args,
+                            const std::string& out = "/dev/null",
+                            const std::string& err = "/dev/null") {
+  std::vector<std::string> all{BENCHTAU_EXE};
+  all.insert(all.end(), args.begin(), args.end());
+  std::vector<char*> argv;
+  for (auto& a : all) argv.push_back(a.data());
+  argv.push_back(nullptr);
+  const pid_t pid = ::fork();
+  REQUIRE(pid >= 0);
+  if (pid == 0) {
+    const int o = ::open(out.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0644);
+    const int e = ::open(err.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0644);
+    if (o < 0 || e < 0) ::_exit(127);
+    ::dup2(o, STDOUT_FILENO);
+    ::dup2(e, STDERR_FILENO);
+    ::execv(argv[0], argv.data());
+    ::_exit(127);
+  }
+  return pid;
+}
+
+// Waits for the child; returns its exit code, or 128 + the signal that ended it.
+inline int wait_child(pid_t pid) {
+  int status = 0;
+  while (::waitpid(pid, &status, 0) < 0) {
+    if (errno != EINTR) return -1;
+  }
+  if (WIFEXITED(status)) return WEXITSTATUS(status);
+  if (WIFSIGNALED(status)) return 128 + WTERMSIG(status);
+  return -1;
 }
 
 }  // namespace benchtau::test
