@@ -177,6 +177,24 @@ std::string syntax_message(std::string_view description) {
   return s;
 }
 
+// toml++ counts columns in code points; InputError counts bytes.
+std::size_t byte_column(std::string_view text, std::size_t line, std::size_t column) {
+  std::size_t start = 0;
+  for (std::size_t l = 1; l < line && start != std::string_view::npos; ++l) {
+    start = text.find('\n', start);
+    if (start != std::string_view::npos) ++start;
+  }
+  if (start == std::string_view::npos || column == 0) return column;
+  std::size_t points = 0;
+  std::size_t k = start;
+  for (; k < text.size() && text[k] != '\n'; ++k) {
+    const bool continuation = (static_cast<unsigned char>(text[k]) & 0xC0) == 0x80;
+    if (continuation) continue;
+    if (++points == column) return k - start + 1;
+  }
+  return k - start + (column - points);
+}
+
 }  // namespace
 
 Design read_design_text(std::string_view text, const std::string& source) {
@@ -184,7 +202,8 @@ Design read_design_text(std::string_view text, const std::string& source) {
   try {
     root = toml::parse(text, std::string_view(source));
   } catch (const toml::parse_error& e) {
-    throw InputError(source, e.source().begin.line, e.source().begin.column,
+    const std::size_t line = e.source().begin.line;
+    throw InputError(source, line, byte_column(text, line, e.source().begin.column),
                      syntax_message(e.description()));
   }
   const Reader r(source);

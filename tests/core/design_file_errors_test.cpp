@@ -25,6 +25,15 @@ TEST_CASE("bad design files: one exact message each, with file and line") {
     CHECK(error_of(with("[capture]", "[capture")) ==
           "board.toml:12:9: bad TOML: error while parsing table header: expected ']', saw '\\n'");
   }
+  SECTION("TOML syntax: columns count bytes, as in every benchtau message") {
+    // "\xC2\xB5" is one code point in two bytes: the x is the 15th byte of the line.
+    CHECK(error_of("name = \"\xC2\xB5\xC2\xB5\" x\n") ==
+          "board.toml:1:15: bad TOML: error while parsing key-value pair: expected a comment or "
+          "whitespace, saw 'x'");
+    CHECK(error_of("supply_V = 9\nname = \"\xC2\xB5\"\nfamily = \"cmos\" x") ==
+          "board.toml:3:17: bad TOML: error while parsing key-value pair: expected a comment or "
+          "whitespace, saw 'x'");
+  }
   SECTION("unknown keys and tables, with a near miss suggested") {
     CHECK(error_of(with("supply_V = 9.0", "suply_V = 9.0")) ==
           "board.toml:2: unknown key \"suply_V\" at the top level; did you mean \"supply_V\"?");
@@ -227,7 +236,8 @@ TEST_CASE("bad design files: one exact message each, with file and line") {
 TEST_CASE("every truncation of a design file reads or gives one located error") {
   const std::string full =
       std::string(kExample) +
-      "out_input_ohm = \"10M\"\n[timer]\ndivider_ohm = \"5k\"\ntrigger_current_A = -0.5e-6\n";
+      "out_input_ohm = \"10M\"  # 10 M\xCE\xA9 probe\n[timer]\ndivider_ohm = \"5k\"\n"
+      "trigger_current_A = -0.5e-6\n";
   REQUIRE_NOTHROW(read(full));
   std::size_t read_whole = 0, errors = 0, other = 0;
   for (std::size_t n = 0; n <= full.size(); ++n) {
@@ -243,6 +253,12 @@ TEST_CASE("every truncation of a design file reads or gives one located error") 
       CHECK(e.file() == "board.toml");
       CHECK(e.line() >= 1);
       CHECK(e.line() <= lines);
+      if (e.column() > 0) {  // a byte of its line, or just past its end
+        std::size_t start = 0;
+        for (std::size_t l = 1; l < e.line(); ++l) start = prefix.find('\n', start) + 1;
+        const std::size_t end = std::min(prefix.find('\n', start), prefix.size());
+        CHECK(e.column() <= end - start + 1);
+      }
     } catch (...) {
       ++other;
     }
