@@ -52,11 +52,13 @@ class PartParser {
         line_(first_line),
         stop_line_(stop_line),
         out_(out),
-        columns_(layout.columns) {
+        columns_(layout.columns),
+        watch_column_(layout.watch.value_or(static_cast<std::size_t>(-1))) {
     out_.gaps.assign(columns_, {});
   }
 
-  // Parses a span of whole lines, which must end in '\n'.
+  // Parses a span of whole lines, which must end in '\n': that final byte
+  // stops every scan for blanks and digits, so they need no bounds checks.
   // Returns false when it gave up because an earlier error is known.
   bool block(std::span<const char> bytes) {
     const char* p = bytes.data();
@@ -69,7 +71,7 @@ class PartParser {
       }
       const char* line_begin = p;
       const char* q = p;
-      while (q < end && is_pad(*q)) ++q;
+      while (is_pad(*q)) ++q;
       if (q == end) return true;  // blanks and then the end of the file
       const char c = *q;
       if (c == '\n' || (c == '\r' && (q + 1 == end || q[1] == '\n'))) {
@@ -138,7 +140,7 @@ class PartParser {
     if (r >= target_.capacity) throw std::logic_error("csv: more rows than lines counted");
     const char* watch_at = nullptr;
     for (std::size_t c = 0; c < columns_; ++c) {
-      while (q < end && is_pad(*q)) ++q;
+      while (is_pad(*q)) ++q;
       const char* const field = q;
       double v = nan_value;
       bool ok = false;
@@ -150,7 +152,7 @@ class PartParser {
       }
       if (!ok) v = other_cell(line_begin, field, q, end, c);
       target_.columns[c][r] = v * layout_.to_si[c];
-      if (layout_.watch && *layout_.watch == c) watch_at = field;
+      if (c == watch_column_) watch_at = field;
 
       // Now q is at this cell's separator or the line end.
       if (c + 1 < columns_) {
@@ -172,7 +174,7 @@ class PartParser {
     } else {
       if (q < end && *q == Sep) {
         const char* t = q + 1;
-        while (t < end && is_pad(*t)) ++t;
+        while (is_pad(*t)) ++t;
         if (is_eol(t, end)) q = t;
       }
     }
@@ -188,7 +190,7 @@ class PartParser {
   static bool ends_cell(const char* ptr, const char* end, const char*& q) {
     const char* after = ptr;
     if constexpr (Sep != ' ') {
-      while (after < end && is_pad(*after)) ++after;
+      while (is_pad(*after)) ++after;
     }
     if (after == end || *after == Sep || is_eol(after, end) || (Sep == ' ' && *after == '\t')) {
       q = after;
@@ -222,7 +224,7 @@ class PartParser {
     }
     q = stop;
     if constexpr (Sep != ' ') {
-      while (q < end && is_pad(*q)) ++q;
+      while (is_pad(*q)) ++q;
     }
     return v;
   }
@@ -305,6 +307,7 @@ class PartParser {
   std::atomic<std::size_t>& stop_line_;
   PartOutput& out_;
   std::size_t columns_;
+  std::size_t watch_column_;  // -1 for none
 };
 
 template <char Sep, bool DecimalComma>

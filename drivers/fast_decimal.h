@@ -6,6 +6,30 @@
 
 namespace benchtau::csv {
 
+// Appends the digits at q to m and moves q past them; two a step when there
+// is no end to check, which halves the loop's tests.
+template <bool Bounded>
+[[gnu::always_inline]] inline void read_digits(const char*& q, const char* end, std::uint64_t& m) {
+  const auto digit = [](char c) { return static_cast<unsigned>(c - '0'); };
+  if constexpr (Bounded) {
+    while (q < end && digit(*q) < 10) m = m * 10 + digit(*q++);
+  } else {
+    (void)end;
+    while (true) {
+      const unsigned d0 = digit(q[0]);
+      if (d0 >= 10) return;
+      const unsigned d1 = digit(q[1]);  // q[0] is a digit, so q[1] is still before the end
+      if (d1 >= 10) {
+        m = m * 10 + d0;
+        ++q;
+        return;
+      }
+      m = m * 100 + d0 * 10 + d1;
+      q += 2;
+    }
+  }
+}
+
 // Parses [-]digits[.digits][(e|E)[+|-]digits] when the digits form an integer
 // m <= 2^53 and the decimal exponent e lies within [-22, 22]. Then m and 10^|e|
 // are exact doubles and one multiply or divide rounds correctly (Clinger's
@@ -39,12 +63,12 @@ template <bool Bounded = true>
   // still fit in 64 bits (unsigned arithmetic wraps harmlessly beyond).
   std::uint64_t m = 0;
   const char* first = q;
-  while (more(q) && digit(*q) < 10) m = m * 10 + digit(*q++);
+  read_digits<Bounded>(q, end, m);
   std::ptrdiff_t digits = q - first;
   int exponent = 0;
   if (more(q) && *q == '.') {
     const char* frac = ++q;
-    while (more(q) && digit(*q) < 10) m = m * 10 + digit(*q++);
+    read_digits<Bounded>(q, end, m);
     exponent = -static_cast<int>(q - frac);
     digits += q - frac;
   }
