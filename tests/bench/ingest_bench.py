@@ -63,7 +63,7 @@ def run_benchtau(program, path, threads):
     for key in ("bytes", "rows", "columns", "peak_rss_bytes", "decoded_bytes", "edges"):
         if key in values:
             values[key] = int(values[key])
-    for key in ("seconds", "edge_seconds", "edge_samples_per_s"):
+    for key in ("seconds", "cpu_seconds", "edge_seconds", "edge_samples_per_s"):
         if key in values:
             values[key] = float(values[key])
     return values
@@ -79,11 +79,12 @@ def run_pandas(path):
     import numpy as np
     import pandas as pd
 
+    cpu = time.process_time()
     start = time.perf_counter()
     frame = pd.read_csv(path, comment="#")
     arrays = [np.ascontiguousarray(frame[c].to_numpy(dtype=np.float64)) for c in frame.columns]
     seconds = time.perf_counter() - start
-    return {"seconds": seconds, "rows": len(arrays[0])}
+    return {"seconds": seconds, "cpu_seconds": time.process_time() - cpu, "rows": len(arrays[0])}
 
 
 def mb(n):
@@ -152,6 +153,8 @@ def main():
          f"{args.rows / pd['seconds'] / 1e6:.1f} M" if pd else "-"),
         ("best time of %d" % args.runs, f"{bt['seconds']:.3f} s", f"{wc['seconds']:.3f} s",
          f"{pd['seconds']:.3f} s" if pd else "-"),
+        ("CPU time (user+sys)", f"{bt['cpu_seconds']:.3f} s", "-",
+         f"{pd['cpu_seconds']:.3f} s" if pd else "-"),
         ("peak RSS", f"{mb(bt['peak_rss_bytes']):.0f} MB", "-", "-"),
         ("  / decoded samples", f"{rss_ratio:.2f}x of {mb(bt['decoded_bytes']):.0f} MB", "-", "-"),
         ("edge extraction", f"{bt.get('edge_samples_per_s', float('nan')) / 1e6:.0f} M samples/s", "-", "-"),
@@ -165,6 +168,12 @@ def main():
     print()
     print(f"threads: {args.threads or os.cpu_count()}; edges found: {bt.get('edges', '-')} "
           f"on channel {bt.get('edge_channel', '-')}")
+    if pd:
+        print(f"CPU time per byte, pandas / benchtau: {pd['cpu_seconds'] / bt['cpu_seconds']:.1f}x")
+    load = os.getloadavg()[0]
+    if load > (os.cpu_count() or 1):
+        print(f"note: load average {load:.1f} on {os.cpu_count()} cores while timing; wall-clock "
+              "figures are shared with other work")
 
 
 if __name__ == "__main__":
