@@ -67,6 +67,7 @@ long FrameDecoder::try_frame(SampleBatch& out) {
   }
 
   ++counters_.frames;
+  counters_.frame_bytes += length;
   const auto sequence = static_cast<std::uint16_t>(f[5] | (f[6] << 8));
   const bool start = (f[2] & frame::kFlagStart) != 0;
   if (have_sequence_ && sequence != expected_sequence_) {

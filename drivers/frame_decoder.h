@@ -15,6 +15,7 @@ struct FrameCounters {
   std::uint64_t frames = 0;         // good frames decoded
   std::uint64_t lost_frames = 0;    // frames missing by their sequence numbers
   std::uint64_t crc_errors = 0;     // candidate frames (sync and a sane header) with a bad CRC
+  std::uint64_t frame_bytes = 0;    // bytes in good frames
   std::uint64_t skipped_bytes = 0;  // bytes that were not part of a good frame
   std::uint64_t restarts = 0;       // the board began sampling again (start flag out of sequence)
   std::uint64_t other_layout = 0;   // good frames with another channel count than the first

@@ -123,6 +123,10 @@ SessionEnd LiveSession::run(const std::atomic<bool>& stop) {
 void LiveSession::process(std::span<const std::uint8_t> bytes) {
   batch_.clear();
   decoder_->feed(bytes, batch_);
+  deliver();
+}
+
+void LiveSession::deliver() {
   const std::lock_guard lock(mutex_);
   current_ = decoder_->counters();
   status_.format = decoder_->format();
@@ -168,6 +172,10 @@ void LiveSession::process(std::span<const std::uint8_t> bytes) {
 }
 
 void LiveSession::disconnect(const std::string& why) {
+  // A line held back for checking is all there will be of it.
+  batch_.clear();
+  decoder_->finish(batch_);
+  deliver();
   {
     const std::lock_guard lock(mutex_);
     source_.reset();

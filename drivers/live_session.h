@@ -82,6 +82,7 @@ class LiveSession {
  private:
   void connect(std::unique_ptr<ByteSource> source, double t0_s);
   void process(std::span<const std::uint8_t> bytes);
+  void deliver();  // batch_ to the record, the window and the status
   void disconnect(const std::string& why);
   bool try_reconnect();
   void view_loop(const std::atomic<bool>& done);

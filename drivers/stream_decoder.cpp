@@ -26,6 +26,7 @@ StreamCounters& operator+=(StreamCounters& a, const StreamCounters& b) {
   a.frames.frames += b.frames.frames;
   a.frames.lost_frames += b.frames.lost_frames;
   a.frames.crc_errors += b.frames.crc_errors;
+  a.frames.frame_bytes += b.frames.frame_bytes;
   a.frames.skipped_bytes += b.frames.skipped_bytes;
   a.frames.restarts += b.frames.restarts;
   a.frames.other_layout += b.frames.other_layout;
@@ -114,6 +115,10 @@ void StreamDecoder::feed(std::span<const std::uint8_t> bytes, SampleBatch& out) 
   } else {
     text_->feed(bytes, out);
   }
+}
+
+void StreamDecoder::finish(SampleBatch& out) {
+  if (text_) text_->finish(out);
 }
 
 StreamCounters StreamDecoder::counters() const {

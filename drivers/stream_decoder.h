@@ -52,6 +52,9 @@ class StreamDecoder {
   // without a rate, or when the text lines have no times.
   void feed(std::span<const std::uint8_t> bytes, SampleBatch& out);
 
+  // The end of the stream: whatever a decoder held back to check comes out.
+  void finish(SampleBatch& out);
+
   StreamFormat format() const { return format_; }
   // Text whose lines begin with timestamps (given or detected).
   bool text_timestamps() const { return text_ && text_->has_timestamps(); }

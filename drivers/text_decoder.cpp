@@ -18,8 +18,6 @@ constexpr std::uint64_t kMaxCount = 65535;
 // that wrap, anything else going back is a restart.
 constexpr std::uint64_t kWrap32 = std::uint64_t{1} << 32;
 constexpr std::uint64_t kNearWrap = std::uint64_t{1} << 26;
-// A step this many times the last one means samples are missing.
-constexpr double kGapSteps = 10.0;
 
 bool is_separator(char c) { return c == ',' || c == ' ' || c == '\t'; }
 
@@ -156,58 +154,130 @@ void TextDecoder::sample(const std::vector<std::uint64_t>& numbers, SampleBatch&
     skip_line();
     return;
   }
-  double t = 0.0;
-  if (mode_ == TimestampMode::off) {
-    if (pending_gap_) {
-      out.add_gap(next_t_s());
-      ++index_;
-      pending_gap_ = false;
-    }
-    t = next_t_s();
-    ++index_;
-  } else {
-    const std::uint64_t raw = numbers[0];
-    if (!have_time_) {
-      base_us_ = raw;
-      base_s_ = options_.t0_s;
-      have_time_ = true;
-    } else if (raw == last_raw_) {
-      // Time stood still: not a sample line of this stream.
-      skip_line();
-      return;
-    } else if (raw < last_raw_ &&
-               !(last_raw_ >= kWrap32 - kNearWrap && last_raw_ < kWrap32 && raw < kNearWrap)) {
-      // The board began again: its clock restarted. One gap row, then a new time base.
-      ++counters_.restarts;
-      // Before a second sample there is no step yet; 1 us keeps the times rising.
-      const double step = step_s_ > 0.0 ? step_s_ : 1e-6;
-      const double gap_t = last_t_s_ + step;
-      out.add_gap(gap_t);
-      base_us_ = raw;
-      wrap_us_ = 0;
-      base_s_ = gap_t + step;
-    } else {
-      if (raw < last_raw_) wrap_us_ += kWrap32;
-      const std::uint64_t us = raw + wrap_us_;
-      const double dt = static_cast<double>(us - last_us_) / 1e6;
-      if (step_s_ > 0.0 && dt > kGapSteps * step_s_) {
-        ++counters_.time_gaps;
-        out.add_gap(last_t_s_ + step_s_);
-      } else {
-        step_s_ = dt;
-      }
-    }
-    last_raw_ = raw;
-    last_us_ = raw + wrap_us_;
-    t = base_s_ + static_cast<double>(last_us_ - base_us_) / 1e6;
+  if (mode_ == TimestampMode::on) {
+    stamped(numbers, out);
+    return;
   }
+  if (pending_gap_) {
+    out.add_gap(next_t_s());
+    ++index_;
+    pending_gap_ = false;
+  }
+  const double t = next_t_s();
+  ++index_;
+  emit(t, numbers, out);
+}
+
+TextDecoder::Step TextDecoder::classify(std::uint64_t raw) const {
+  if (raw == last_raw_) return Step::stood_still;
+  if (raw < last_raw_) {
+    const bool wrap = last_raw_ >= kWrap32 - kNearWrap && last_raw_ < kWrap32 && raw < kNearWrap;
+    if (!wrap) return Step::back;
+  }
+  const std::uint64_t us = raw < last_raw_ ? raw + kWrap32 - last_raw_ : raw - last_raw_;
+  if (step_s_ > 0.0 && static_cast<double>(us) / 1e6 > TextDecoder::kGapSteps * step_s_)
+    return Step::jump;
+  return Step::next;
+}
+
+bool TextDecoder::continues(std::uint64_t from, std::uint64_t to) const {
+  return to > from && (step_s_ <= 0.0 ||
+                       static_cast<double>(to - from) / 1e6 <= TextDecoder::kGapSteps * step_s_);
+}
+
+void TextDecoder::stamped(const std::vector<std::uint64_t>& numbers, SampleBatch& out) {
+  const std::uint64_t raw = numbers[0];
+  if (!have_time_) {
+    have_time_ = true;
+    base_us_ = last_us_ = last_raw_ = raw;
+    base_s_ = options_.t0_s;
+    emit(base_s_, numbers, out);
+    return;
+  }
+  const Step step = classify(raw);
+  if (step == Step::stood_still) {
+    skip_line();  // time stood still: not a sample line of this stream
+    return;
+  }
+  if (step == Step::next) {
+    // A held line that this one does not continue from was garbled.
+    if (suspect_) {
+      suspect_.reset();
+      skip_line();
+    }
+    advance(raw, true, numbers, out);
+    return;
+  }
+  // Back, or far ahead: a restart or a pause, or a garbled number. Believed
+  // only when the next line goes on from it.
+  if (suspect_ && continues(suspect_->numbers[0], raw)) {
+    const Line held = std::move(*suspect_);
+    suspect_.reset();
+    settle(held, out);
+    stamped(numbers, out);
+    return;
+  }
+  if (suspect_) skip_line();
+  suspect_ = Line{numbers};
+}
+
+void TextDecoder::settle(const Line& line, SampleBatch& out) {
+  const std::uint64_t raw = line.numbers[0];
+  // Before a second sample there is no step yet; 1 us keeps the times rising.
+  const double step = step_s_ > 0.0 ? step_s_ : 1e-6;
+  const double gap_t = last_t_s_ + step;
+  if (!(gap_t > last_t_s_) || !(gap_t + step > gap_t)) {
+    skip_line();  // so far from zero that a step is lost in rounding
+    return;
+  }
+  if (classify(raw) == Step::back) {
+    // The board began again: its clock restarted. One gap row, then a new time base.
+    ++counters_.restarts;
+    out.add_gap(gap_t);
+    base_us_ = last_us_ = last_raw_ = raw;
+    wrap_us_ = 0;
+    base_s_ = gap_t + step;
+    emit(base_s_, line.numbers, out);
+  } else {
+    ++counters_.time_gaps;
+    out.add_gap(gap_t);
+    advance(raw, false, line.numbers, out);
+  }
+}
+
+void TextDecoder::advance(std::uint64_t raw, bool new_step,
+                          const std::vector<std::uint64_t>& numbers, SampleBatch& out) {
+  if (raw < last_raw_) wrap_us_ += kWrap32;
+  const std::uint64_t us = raw + wrap_us_;
+  if (new_step) step_s_ = static_cast<double>(us - last_us_) / 1e6;
+  last_raw_ = raw;
+  last_us_ = us;
+  emit(base_s_ + static_cast<double>(us - base_us_) / 1e6, numbers, out);
+}
+
+void TextDecoder::emit(double t, const std::vector<std::uint64_t>& numbers, SampleBatch& out) {
+  // Times must rise for the record to be read back; far from zero a double
+  // cannot hold a microsecond step, and such a line is dropped.
+  if (!out.t_s.empty() ? !(t > out.t_s.back()) : (emitted_ && !(t > last_t_s_))) {
+    skip_line();
+    return;
+  }
+  emitted_ = true;
   last_t_s_ = t;
   ++counters_.sample_lines;
   out.t_s.push_back(t);
+  const std::size_t first = mode_ == TimestampMode::on ? 1 : 0;
   for (std::size_t k = first; k < numbers.size(); ++k) {
     out.counts.push_back(static_cast<std::uint16_t>(numbers[k]));
   }
   out.gap.push_back(0);
+}
+
+void TextDecoder::finish(SampleBatch& out) {
+  if (!suspect_) return;
+  const Line held = std::move(*suspect_);
+  suspect_.reset();
+  settle(held, out);
 }
 
 }  // namespace benchtau

@@ -45,16 +45,28 @@ struct TextCounters {
 // be a reading) and strictly increases from line to line. Otherwise it throws
 // InputError asking for --rate. A sawtooth's counts also rise, which is why
 // the size test is there; an explicit --timestamps or --rate is surer.
+//
+// With timestamps, a line whose time goes back (a restarted board) or jumps
+// ahead by more than kGapSteps of the last step (a pause) is held until the
+// next line: if that one goes on from it, the restart or pause is real and a
+// gap row goes in; if it goes on from the line before, the held line was
+// garbled on the way (a dropped digit) and is skipped. So one bad line does
+// not shift the rest of the record in time.
 class TextDecoder {
  public:
   static constexpr std::size_t kDetectLines = 8;
   static constexpr std::size_t kMaxLineBytes = 256;
+  static constexpr double kGapSteps = 10.0;
 
   explicit TextDecoder(TextOptions options);
 
   // Decodes the complete lines in bytes; a partial last line waits for the
   // next call. Throws InputError when detection fails.
   void feed(std::span<const std::uint8_t> bytes, SampleBatch& out);
+
+  // The end of the stream (the link went away): a line held back to see
+  // whether the next one goes on from it is taken as it stands.
+  void finish(SampleBatch& out);
 
   const TextCounters& counters() const { return counters_; }
   bool has_timestamps() const { return mode_ == TimestampMode::on; }
@@ -68,8 +80,16 @@ class TextDecoder {
   struct Line {
     std::vector<std::uint64_t> numbers;
   };
+  enum class Step { next, stood_still, back, jump };
   void line(std::string_view text, SampleBatch& out);
   void sample(const std::vector<std::uint64_t>& numbers, SampleBatch& out);
+  Step classify(std::uint64_t raw) const;
+  bool continues(std::uint64_t from, std::uint64_t to) const;
+  void stamped(const std::vector<std::uint64_t>& numbers, SampleBatch& out);
+  void settle(const Line& line, SampleBatch& out);
+  void advance(std::uint64_t raw, bool new_step, const std::vector<std::uint64_t>& numbers,
+               SampleBatch& out);
+  void emit(double t, const std::vector<std::uint64_t>& numbers, SampleBatch& out);
   void skip_line();
   void decide(SampleBatch& out);
 
@@ -81,7 +101,9 @@ class TextDecoder {
   std::size_t channels_ = 0;
   std::size_t fields_ = 0;  // numbers per sample line, fixed by the first one
   std::vector<std::uint64_t> numbers_;
-  std::vector<Line> held_;  // sample lines held back while detecting
+  std::vector<Line> held_;       // sample lines held back while detecting
+  std::optional<Line> suspect_;  // a timestamp out of line, until the next line confirms it
+  bool emitted_ = false;
 
   // Rate mode: samples so far, gap slots included.
   std::uint64_t index_ = 0;

@@ -83,6 +83,8 @@ void check_stream(Damage how, std::uint32_t seed) {
     }
     CHECK(dec.counters().lost_frames == d.hit.size());
     CHECK(dec.counters().frames == frames - d.hit.size());
+    CHECK(dec.counters().frame_bytes + dec.counters().skipped_bytes + dec.pending_bytes() ==
+          d.bytes.size());
     // Every sample decoded is the one sent at that time; every frame not
     // damaged is there in full.
     std::size_t samples = 0;

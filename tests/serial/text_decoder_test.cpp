@@ -159,3 +159,33 @@ TEST_CASE("timestamp detection refuses a sawtooth's rising counts, asking for --
         "samples have no times: give --rate, or --timestamps if the first column is a timestamp "
         "after all");
 }
+
+TEST_CASE("a garbled timestamp is skipped, not taken for a restart or a pause") {
+  TextDecoder d(stamp_options());
+  // 2500 lost its last digit on the way ("250"), and 3500 gained one.
+  const SampleBatch out = feed(d, "1000,1\n1500,2\n2000,3\n250,4\n3000,5\n35000,6\n4000,7\n");
+  CHECK(d.counters().restarts == 0);
+  CHECK(d.counters().time_gaps == 0);
+  CHECK(d.counters().skipped_lines == 2);
+  CHECK(out.t_s == std::vector<double>{0.0, 500 / 1e6, 1000 / 1e6, 2000 / 1e6, 3000 / 1e6});
+  CHECK(out.counts == std::vector<std::uint16_t>{1, 2, 3, 5, 7});
+}
+
+TEST_CASE("a restart on the last line before the link drops is kept when the stream ends") {
+  TextDecoder d(stamp_options());
+  SampleBatch out = feed(d, "1000,1\n1500,2\n100,3\n");
+  CHECK(out.rows() == 2);  // the last line waits for the next to confirm it
+  d.finish(out);
+  CHECK(d.counters().restarts == 1);
+  CHECK(out.gap == std::vector<std::uint8_t>{0, 0, 1, 0});
+  CHECK(out.row(3)[0] == 3);
+}
+
+TEST_CASE("timestamps too far from zero for a microsecond step are dropped, times still rise") {
+  TextDecoder d(stamp_options());
+  // 10^18 us: a double there cannot tell one microsecond from the next.
+  const SampleBatch out =
+      feed(d, "1000,1\n2000,2\n1000000000000000000,3\n1000000000000000001,4\n1000000000000000002,5\n");
+  for (std::size_t i = 1; i < out.rows(); ++i) CHECK(out.t_s[i] > out.t_s[i - 1]);
+  CHECK(d.counters().skipped_lines >= 1);
+}
