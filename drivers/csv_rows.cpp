@@ -20,23 +20,27 @@
 namespace benchtau::csv {
 namespace {
 
-// Runs job(0) ... job(n - 1), each on its own thread when n > 1. An exception
-// from any job is rethrown here, the lowest-numbered first.
-void run_parts(unsigned n, const std::function<void(unsigned)>& job) {
-  if (n == 1) {
-    job(0);
+// Runs job(0) ... job(jobs - 1) on workers threads, each taking the next job
+// not yet taken, so that a thread that gets less of a busy machine simply does
+// fewer. An exception from any job is rethrown here, the lowest-numbered first.
+void run_parts(unsigned jobs, unsigned workers, const std::function<void(unsigned)>& job) {
+  if (workers <= 1 || jobs <= 1) {
+    for (unsigned k = 0; k < jobs; ++k) job(k);
     return;
   }
-  std::vector<std::exception_ptr> failures(n);
+  std::vector<std::exception_ptr> failures(jobs);
+  std::atomic<unsigned> next{0};
   {
     std::vector<std::jthread> threads;
-    threads.reserve(n);
-    for (unsigned k = 0; k < n; ++k) {
-      threads.emplace_back([&, k] {
-        try {
-          job(k);
-        } catch (...) {
-          failures[k] = std::current_exception();
+    threads.reserve(workers);
+    for (unsigned w = 0; w < std::min(workers, jobs); ++w) {
+      threads.emplace_back([&] {
+        for (unsigned k = next++; k < jobs; k = next++) {
+          try {
+            job(k);
+          } catch (...) {
+            failures[k] = std::current_exception();
+          }
         }
       });
     }
@@ -74,9 +78,12 @@ ParsedRows parse_rows(const ByteSource& source, std::size_t data_begin, std::siz
                       const RowLayout& layout, unsigned threads, const std::string& name) {
   const std::size_t size = source.size();
   const std::size_t region = size > data_begin ? size - data_begin : 0;
-  unsigned parts = threads == 0 ? std::max(1u, std::thread::hardware_concurrency()) : threads;
-  parts = std::min(
-      {parts, 64u, static_cast<unsigned>(std::max<std::size_t>(1, region / min_part_bytes))});
+  const auto most_parts =
+      static_cast<unsigned>(std::clamp<std::size_t>(region / min_part_bytes, 1, max_parts));
+  unsigned workers = threads == 0 ? std::max(1u, std::thread::hardware_concurrency()) : threads;
+  workers = std::min({workers, 64u, most_parts});
+  // A few parts a thread, handed out as threads come free.
+  const unsigned parts = workers == 1 ? 1u : std::min(workers * parts_per_worker, most_parts);
 
   // Parts start at line starts: each is what lies after the first line end
   // at or past an even share of the region.
@@ -89,7 +96,8 @@ ParsedRows parse_rows(const ByteSource& source, std::size_t data_begin, std::siz
 
   // A newline count per part gives its first line number and a bound on its rows.
   std::vector<std::size_t> newlines(parts, 0);
-  run_parts(parts, [&](unsigned k) { newlines[k] = count_part(source, bounds[k], bounds[k + 1]); });
+  run_parts(parts, workers,
+            [&](unsigned k) { newlines[k] = count_part(source, bounds[k], bounds[k + 1]); });
   std::vector<std::size_t> first_lines(parts), base(parts);
   std::size_t capacity = 0;
   std::size_t line = first_line;
@@ -102,14 +110,13 @@ ParsedRows parse_rows(const ByteSource& source, std::size_t data_begin, std::siz
 
   ParsedRows out;
   out.parts = parts;
+  out.workers = workers;
   out.columns.resize(layout.columns);
   // Zero-filling hundreds of megabytes is worth spreading over the threads,
   // one a column so that three columns on two cores still share out evenly.
-  const unsigned fillers = parts == 1 ? 1u : static_cast<unsigned>(layout.columns);
-  run_parts(fillers, [&](unsigned k) {
-    for (std::size_t c = k; c < layout.columns; c += fillers)
-      allocate_column(out.columns[c], capacity);
-  });
+  const auto columns = static_cast<unsigned>(layout.columns);
+  run_parts(columns, workers == 1 ? 1u : columns,
+            [&](unsigned c) { allocate_column(out.columns[c], capacity); });
 
   std::vector<PartOutput> results(parts);
   std::vector<std::vector<double*>> pointers(parts);
@@ -119,7 +126,7 @@ ParsedRows parse_rows(const ByteSource& source, std::size_t data_begin, std::siz
     targets[k] = {pointers[k], newlines[k] + 1};
   }
   std::atomic<std::size_t> stop_line{std::numeric_limits<std::size_t>::max()};
-  run_parts(parts, [&](unsigned k) {
+  run_parts(parts, workers, [&](unsigned k) {
     parse_part(source, bounds[k], bounds[k + 1], first_lines[k], layout, targets[k], name,
                stop_line, results[k]);
   });

@@ -38,11 +38,15 @@ struct ParsedRows {
   // The file's last line, when it has no line end and was therefore not read
   // (a row cut short reads as a wrong number: "2.5" cut to "2."); 0 if none.
   std::size_t unterminated_line = 0;
-  unsigned parts = 1;  // how many parts were parsed side by side
+  unsigned parts = 1;    // how many parts the rows were split into
+  unsigned workers = 1;  // threads that parsed them
 };
 
-// Parts smaller than this are not worth a thread of their own.
+// Parts smaller than this are not worth splitting off.
 inline constexpr std::size_t min_part_bytes = 64 * 1024;
+inline constexpr std::size_t max_parts = 256;
+// A few parts a thread, handed out as threads come free, even out the work.
+inline constexpr unsigned parts_per_worker = 4;
 
 // Parses [data_begin, source.size()), whose first line is first_line, with up
 // to threads threads (0: one per core). The first error by line number is

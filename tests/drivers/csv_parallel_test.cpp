@@ -82,7 +82,10 @@ TEST_CASE("csv parallel: the capture is big enough to be split") {
   layout.to_si = {1, 1, 1};
   layout.fields_reference = "line 3";
   const auto rows = benchtau::csv::parse_rows(source, text.find("0,"), 3, layout, 7, "scope.csv");
-  CHECK(rows.parts == 7);
+  CHECK(rows.workers == 7);
+  // Split finer than the threads, but no part under the minimum size.
+  CHECK(rows.parts > rows.workers);
+  CHECK(rows.parts <= (text.size() - text.find("0,")) / benchtau::csv::min_part_bytes);
   CHECK(rows.rows == 60000);
 }
 
