@@ -15,6 +15,8 @@ enum Exit : int {
 // Each adds its subcommand; when it runs, it stores its exit code in exit_code.
 void add_measure_command(CLI::App& app, int& exit_code);
 void add_safety_command(CLI::App& app, int& exit_code);
+void add_predict_command(CLI::App& app, int& exit_code);
+void add_simulate_command(CLI::App& app, int& exit_code);
 void add_ports_command(CLI::App& app, int& exit_code);
 void add_watch_command(CLI::App& app, int& exit_code);
 void add_capture_command(CLI::App& app, int& exit_code);

@@ -17,6 +17,8 @@ int main(int argc, char** argv) {
   int exit_code = benchtau::cli::kMeasured;
   benchtau::cli::add_measure_command(app, exit_code);
   benchtau::cli::add_safety_command(app, exit_code);
+  benchtau::cli::add_predict_command(app, exit_code);
+  benchtau::cli::add_simulate_command(app, exit_code);
   benchtau::cli::add_ports_command(app, exit_code);
   benchtau::cli::add_watch_command(app, exit_code);
   benchtau::cli::add_capture_command(app, exit_code);
