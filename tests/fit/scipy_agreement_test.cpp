@@ -139,10 +139,10 @@ TEST_CASE("a joint fit of several segments: Ceres and SciPy agree to 1e-6 (Huber
     const double vinf_rel = std::fabs(p->vinf_V.value - ref.values["vinf_V"]) /
                             std::max(1.0, std::fabs(ref.values["vinf_V"]));  // Vinf near 0 V
     INFO((p->phase == Phase::charging ? "charging" : "discharging")
-         << " tau: ours " << p->tau_s.value << " s, SciPy " << ref.values["tau_s"]
-         << " s, relative " << tau_rel);
-    INFO("Vinf: ours " << p->vinf_V.value << " V, SciPy " << ref.values["vinf_V"]
-                       << " V, difference relative to max(1 V, |Vinf|) " << vinf_rel);
+         << ": tau relative " << tau_rel << " (ours " << p->tau_s.value << " s, SciPy "
+         << ref.values["tau_s"] << " s)");
+    INFO("Vinf relative to max(1 V, |Vinf|) " << vinf_rel << " (ours " << p->vinf_V.value
+                                              << " V, SciPy " << ref.values["vinf_V"] << " V)");
     CHECK(tau_rel < 1e-6);
     CHECK(vinf_rel < 1e-6);
     REQUIRE(ref.amp_V.size() == p->amp_V.size());
