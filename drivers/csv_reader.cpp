@@ -296,6 +296,7 @@ CsvResult read_source(const csv::ByteSource& source, const std::string& name,
     Channel ch;
     ch.name = column_title(names, dialect.has_header, c);
     ch.unit = names[c].si_unit;
+    ch.column = c + 1;
     ch.values = std::move(rows.columns[c]);
     ch.missing = rows.gaps[c].missing;
     ch.first_missing_line = rows.gaps[c].first_line;

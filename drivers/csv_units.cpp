@@ -140,6 +140,16 @@ ColumnName parse_column_name(std::string_view cell) {
   const std::string_view name = c.name;
   c.base = c.name;
 
+  // A circuit simulator's probe name, "v(out)" or "i(r1)", is a node
+  // voltage or a branch current in SI units, not a name with a unit.
+  if (name.size() > 3 && name[1] == '(' && name.back() == ')' &&
+      (name[0] == 'v' || name[0] == 'V' || name[0] == 'i' || name[0] == 'I')) {
+    const bool volts = name[0] == 'v' || name[0] == 'V';
+    c.quantity = volts ? Quantity::voltage : Quantity::current;
+    c.si_unit.assign(1, volts ? 'V' : 'A');
+    return c;
+  }
+
   std::string_view base = name;
   std::string_view unit;
   bool bracketed = false;

@@ -99,7 +99,9 @@ void check_channel(const Capture& c, std::size_t k, bool smooth_node, Findings& 
                     "left out, not filled in, and no edge is timed across them",
                     ch.name, ch.missing, ch.first_missing_line));
   }
-  if (!smooth_node) return;  // an output pin is flat at its levels by nature
+  // The output pin is flat at its levels by nature, and so is a control pin
+  // fed back from the output; only the capacitor's sawtooth never rests.
+  if (!smooth_node) return;
   const ChannelSpread s = channel_spread(ch.values);
   // Clipping flattens every cycle that crosses the rail; one flat stretch is
   // something else (the supply still off at the start of the record).
@@ -192,7 +194,7 @@ Measurement measure(const Capture& capture, const NodeMap& map, const MeasureOpt
   m.summary.out_low_V = m.summary.out_high_V = kNaN;
 
   for (auto k : {map.out, map.cap, map.ctl})
-    if (k) check_channel(capture, *k, k != map.out, m.findings);
+    if (k) check_channel(capture, *k, k == map.cap, m.findings);
 
   EdgeScan scan;
   bool have_edges = false;

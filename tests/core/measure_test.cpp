@@ -249,3 +249,15 @@ TEST_CASE("period drift in ppm per second from a steadily slowing timer") {
   const double expected = (1e-3 * mean_period / mean_period) / mean_period * 1e6;
   CHECK(r.summary.drift.ppm_per_s == Approx(expected).epsilon(0.05));
 }
+
+TEST_CASE("a two-level control pin (fed back from the output) is not taken for clipping") {
+  SynthRecord rec = record(8.0, 300.0);
+  rec.capture.channels[2].values.clear();
+  for (double v : rec.capture.channels[0].values)
+    rec.capture.channels[2].values.push_back(v > 3.0 ? 6.5 : 5.5);
+  NodeMap m = out_and_cap();
+  m.ctl = 2;
+  const Measurement r = measure(rec.capture, m);
+  CHECK(find(r, "clipped_channel") == nullptr);
+  CHECK(r.summary.ctl_V.max == Approx(6.5));
+}
