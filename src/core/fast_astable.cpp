@@ -9,6 +9,16 @@ namespace {
 bool finite_positive(double x) { return x > 0.0 && x < kOpen; }
 bool open_or_positive(double x) { return x > 0.0; }  // kOpen is absent
 
+// exp(-x). The propagation delay is usually a tiny fraction of a time
+// constant, where six terms of the series are exact to double precision
+// (the first term left out is below x^6 / 720 < 2e-21) and far cheaper.
+double exp_minus(double x) {
+  if (x >= 0.0 && x < 1e-3) {
+    return 1.0 - x * (1.0 - x * (0.5 - x * (1.0 / 6 - x * (1.0 / 24 - x * (1.0 / 120)))));
+  }
+  return std::exp(-x);
+}
+
 }  // namespace
 
 // The algebra is circuit_model.cpp's Thevenin sums written out for these
@@ -63,8 +73,8 @@ std::optional<OutputValues> fast_astable_outputs(const Circuit& c) {
   // Each phase switches a propagation delay after its crossing (as in the model).
   const double tpd = f.propagation_delay_s;
   const double th = high_r * v.cap_F, tl = low_r * v.cap_F;
-  const double start_V = low_e + (lower_V - low_e) * std::exp(-tpd / tl);
-  const double peak_V = high_e + (upper_V - high_e) * std::exp(-tpd / th);
+  const double start_V = low_e + (lower_V - low_e) * exp_minus(tpd / tl);
+  const double peak_V = high_e + (upper_V - high_e) * exp_minus(tpd / th);
   const double high_s = th * std::log((high_e - start_V) / (high_e - upper_V)) + tpd;
   const double low_s = tl * std::log((peak_V - low_e) / (lower_V - low_e)) + tpd;
   const double period_s = high_s + low_s;

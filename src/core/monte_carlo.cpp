@@ -13,8 +13,6 @@
 namespace benchtau {
 namespace {
 
-constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-
 unsigned thread_count(unsigned asked, std::size_t jobs) {
   unsigned n = asked != 0 ? asked : std::max(1U, std::thread::hardware_concurrency());
   return static_cast<unsigned>(std::min<std::size_t>(n, std::max<std::size_t>(jobs, 1)));
@@ -44,25 +42,8 @@ double value_at(const Variation& v, double z) {
   return v.nominal + z / kSigmasPerTolerance * side;
 }
 
-// Count, mean and sum of squared deviations, combined in a fixed order
-// (Chan, Golub and LeVeque's pairwise update) so that sums never depend on threads.
-struct Moments {
-  double count = 0.0;
-  double mean = 0.0;
-  double m2 = 0.0;
-
-  void merge(const Moments& o) {
-    if (o.count == 0.0) return;
-    const double n = count + o.count;
-    const double d = o.mean - mean;
-    mean += d * o.count / n;
-    m2 += o.m2 + d * d * count * o.count / n;
-    count = n;
-  }
-};
-
-Moments block_moments(std::span<const double> x) {
-  Moments m;
+BlockMoments block_moments(std::span<const double> x) {
+  BlockMoments m;
   double sum = 0.0;
   for (double v : x) {
     if (!std::isnan(v)) {
@@ -80,32 +61,43 @@ Moments block_moments(std::span<const double> x) {
 
 }  // namespace
 
+void BlockMoments::merge(const BlockMoments& o) {
+  if (o.count == 0.0) return;
+  const double n = count + o.count;
+  const double d = o.mean - mean;
+  mean += d * o.count / n;
+  m2 += o.m2 + d * d * count * o.count / n;
+  count = n;
+}
+
 Draws monte_carlo_draws(const Circuit& nominal, std::span<const Variation> variations,
                         const MonteCarloOptions& options) {
   Draws d;
   const std::size_t n = options.draws;
-  for (std::vector<double>& v : d.values) v.assign(n, kNaN);
+  for (DrawValues& v : d.values) v.resize(n);
   const std::size_t blocks = (n + kBlockDraws - 1) / kBlockDraws;
+  d.moments.resize(blocks);
   std::vector<std::size_t> stopped(blocks, 0);
   const bool fast = fast_astable_outputs(nominal).has_value();
+  const Ziggurat& zig = ziggurat();
   parallel_for(blocks, options.threads, [&](std::size_t b) {
     Xoshiro256 rng(options.seed, b);
     Circuit c = nominal;
-    const std::size_t end = std::min(n, (b + 1) * kBlockDraws);
-    for (std::size_t i = b * kBlockDraws; i < end; ++i) {
+    const std::size_t begin = b * kBlockDraws, end = std::min(n, begin + kBlockDraws);
+    for (std::size_t i = begin; i < end; ++i) {
       for (const Variation& v : variations) {
-        v.apply(c, value_at(v, truncated_normal(rng, kSigmasPerTolerance)));
+        v.apply(c, value_at(v, truncated_normal(rng, zig, kSigmasPerTolerance)));
       }
       std::optional<OutputValues> o = fast ? fast_astable_outputs(c) : std::nullopt;
       if (!o) {
         const CyclePrediction p = predict_cycle(c);
-        if (!p.oscillates) {
-          ++stopped[b];
-          continue;
-        }
-        o = outputs_of(p);
+        if (!p.oscillates) ++stopped[b];
+        o = outputs_of(p);  // NaN for a draw that stops
       }
       for (std::size_t k = 0; k < kOutputs; ++k) d.values[k][i] = (*o)[k];
+    }
+    for (std::size_t k = 0; k < kOutputs; ++k) {
+      d.moments[b][k] = block_moments(std::span(d.values[k]).subspan(begin, end - begin));
     }
   });
   for (std::size_t s : stopped) d.stopped += s;
@@ -117,21 +109,11 @@ MonteCarlo summarise_draws(Draws&& draws, std::uint64_t seed, unsigned threads) 
   mc.draws = draws.size();
   mc.stopped = draws.stopped;
   mc.seed = seed;
-  const std::size_t blocks = (mc.draws + kBlockDraws - 1) / kBlockDraws;
-  // Moments per (output, block) in parallel, then merged in block order.
-  std::vector<Moments> part(kOutputs * blocks);
-  parallel_for(kOutputs * blocks, threads, [&](std::size_t j) {
-    const std::size_t k = j / blocks, b = j % blocks;
-    const std::size_t begin = b * kBlockDraws, end = std::min(mc.draws, begin + kBlockDraws);
-    part[j] = block_moments(std::span(draws.values[k]).subspan(begin, end - begin));
-  });
-  std::array<double, kOutputs> counts{};
-  auto part_count = [&](std::size_t k) { return counts[k]; };
   for (std::size_t k = 0; k < kOutputs; ++k) {
-    Moments m;
-    for (std::size_t b = 0; b < blocks; ++b) m.merge(part[k * blocks + b]);
+    BlockMoments m;
+    for (const auto& block : draws.moments) m.merge(block[k]);
     OutputStats& s = mc.outputs[k];
-    counts[k] = m.count;
+    s.count = static_cast<std::size_t>(m.count);
     if (m.count > 0.0) {
       s.mean = m.mean;
       s.std = std::sqrt(m.m2 / m.count);
@@ -140,8 +122,7 @@ MonteCarlo summarise_draws(Draws&& draws, std::uint64_t seed, unsigned threads) 
   // The k-th smallest value is the same whichever order selection meets the
   // values in, so the percentiles too are independent of the threads.
   parallel_for(kOutputs, threads, [&](std::size_t k) {
-    mc.outputs[k].count = static_cast<std::size_t>(part_count(k));
-    percentiles_of(draws.values[k], kPercentiles, mc.outputs[k].percentile);
+    percentiles_of(draws.values[k], kPercentiles, mc.outputs[k].percentile, mc.outputs[k].count);
   });
   return mc;
 }

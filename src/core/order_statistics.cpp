@@ -86,12 +86,18 @@ std::vector<Bracket> brackets_for(std::span<const double> sample, std::size_t n,
 // The values at each rank among the n numbers of x (x may hold NaN).
 void select_bracketed(std::span<double> x, std::size_t n, std::span<const std::size_t> ranks,
                       std::span<double> value) {
-  const std::size_t stride =
-      std::max<std::size_t>(1, x.size() / std::max<std::size_t>(1024, n / 64));
+  // 64 runs of consecutive values, spread evenly over x: cheap to read, and
+  // spread enough that sorted input still gives a fair sample.
+  constexpr std::size_t kRuns = 64;
+  const std::size_t want = std::max<std::size_t>(1024, n / 64);
+  const std::size_t run = std::max<std::size_t>(1, want / kRuns);
   std::vector<double> sample;
-  sample.reserve(x.size() / stride + 1);
-  for (std::size_t i = 0; i < x.size(); i += stride) {
-    if (!std::isnan(x[i])) sample.push_back(x[i]);
+  sample.reserve(kRuns * run);
+  for (std::size_t r = 0; r < kRuns; ++r) {
+    const std::size_t start = r * (x.size() / kRuns);
+    for (std::size_t i = start; i < std::min(x.size(), start + run); ++i) {
+      if (!std::isnan(x[i])) sample.push_back(x[i]);
+    }
   }
   std::sort(sample.begin(), sample.end());
   std::vector<Bracket> brackets = brackets_for(sample, n, ranks);
@@ -145,9 +151,12 @@ void select_bracketed(std::span<double> x, std::size_t n, std::span<const std::s
 
 }  // namespace
 
-void percentiles_of(std::span<double> x, std::span<const double> percents, std::span<double> out) {
-  const auto n = static_cast<std::size_t>(
-      std::count_if(x.begin(), x.end(), [](double v) { return !std::isnan(v); }));
+void percentiles_of(std::span<double> x, std::span<const double> percents, std::span<double> out,
+                    std::size_t count) {
+  const std::size_t n = count != kCountUnknown
+                            ? count
+                            : static_cast<std::size_t>(std::count_if(
+                                  x.begin(), x.end(), [](double v) { return !std::isnan(v); }));
   if (n == 0) {
     std::fill(out.begin(), out.end(), kNaN);
     return;

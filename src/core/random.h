@@ -3,6 +3,7 @@
 #pragma once
 
 #include <array>
+#include <cstddef>
 #include <cstdint>
 
 namespace benchtau {
@@ -54,14 +55,45 @@ class Xoshiro256 {
 // A standard normal by the ziggurat method (Marsaglia and Tsang's published
 // algorithm, written from memory), 256 layers. The layer edges are solved for
 // at first use from the normal density itself, not taken from a table.
-double standard_normal(Xoshiro256& rng);
+// Layer i has width edge[i]: edge[0] is the base layer's virtual width (its
+// rectangle under the density at r = edge[1] plus the tail beyond, as one
+// area), edge[256] = 0, and every layer has the same area.
+struct Ziggurat {
+  static constexpr int kLayers = 256;
+  std::array<double, kLayers + 1> edge{};
+  std::array<double, kLayers + 1> f{};        // the (unnormalised) density at each edge
+  std::array<double, kLayers> inner_ratio{};  // edge[i + 1] / edge[i]: always under the curve
+  double r = 0.0;
+  Ziggurat();
+};
+const Ziggurat& ziggurat();
+
+// The rare draws that land in a wedge or the tail.
+double standard_normal_slow(Xoshiro256& rng, const Ziggurat& z, std::uint64_t bits);
+
+inline double standard_normal(Xoshiro256& rng, const Ziggurat& z) {
+  const std::uint64_t bits = rng.next();
+  const auto i = static_cast<std::size_t>(bits & 0xFF);          // layer: the low 8 bits
+  const double u = static_cast<double>(bits >> 11) * 0x1.0p-53;  // the top 53 bits
+  if (u < z.inner_ratio[i]) {                                    // about 99 % of draws end here
+    const double x = u * z.edge[i];
+    return (bits & 0x100) != 0 ? -x : x;  // bit 8: the sign
+  }
+  return standard_normal_slow(rng, z, bits);
+}
+
+inline double standard_normal(Xoshiro256& rng) { return standard_normal(rng, ziggurat()); }
 
 // A standard normal truncated to [-limit, limit], by rejection.
-inline double truncated_normal(Xoshiro256& rng, double limit) {
+inline double truncated_normal(Xoshiro256& rng, const Ziggurat& z, double limit) {
   for (;;) {
-    const double z = standard_normal(rng);
-    if (z >= -limit && z <= limit) return z;
+    const double x = standard_normal(rng, z);
+    if (x >= -limit && x <= limit) return x;
   }
+}
+
+inline double truncated_normal(Xoshiro256& rng, double limit) {
+  return truncated_normal(rng, ziggurat(), limit);
 }
 
 }  // namespace benchtau

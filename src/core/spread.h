@@ -5,9 +5,12 @@
 #include <cstddef>
 #include <cstdint>
 #include <limits>
+#include <memory>
+#include <new>
 #include <span>
 #include <string>
 #include <string_view>
+#include <utility>
 #include <vector>
 
 #include "src/core/circuit.h"
@@ -93,9 +96,43 @@ struct MonteCarloOptions {
   unsigned threads = 0;  // 0: one per core
 };
 
-// Every draw's outputs, NaN where that draw does not oscillate.
+// A vector that leaves its doubles uninitialised on resize: every draw's slot
+// is written by the thread that draws it, so zero-filling first is wasted.
+template <class T>
+struct UninitialisedAllocator : std::allocator<T> {
+  template <class U>
+  struct rebind {
+    using other = UninitialisedAllocator<U>;
+  };
+  UninitialisedAllocator() = default;
+  template <class U>
+  explicit UninitialisedAllocator(const UninitialisedAllocator<U>&) {}
+  template <class U>
+  void construct(U* p) {
+    ::new (static_cast<void*>(p)) U;
+  }
+  template <class U, class... Args>
+  void construct(U* p, Args&&... args) {
+    ::new (static_cast<void*>(p)) U(std::forward<Args>(args)...);
+  }
+};
+using DrawValues = std::vector<double, UninitialisedAllocator<double>>;
+
+// Count, mean and sum of squared deviations of one block's values of one
+// output, merged in block order (Chan, Golub and LeVeque's pairwise update)
+// so that the sums never depend on the threads.
+struct BlockMoments {
+  double count = 0.0;
+  double mean = 0.0;
+  double m2 = 0.0;
+  void merge(const BlockMoments& o);
+};
+
+// Every draw's outputs, NaN where that draw does not oscillate, and each
+// block's moments, taken while its values were fresh in the cache.
 struct Draws {
-  std::array<std::vector<double>, kOutputs> values;
+  std::array<DrawValues, kOutputs> values;
+  std::vector<std::array<BlockMoments, kOutputs>> moments;  // one per block
   std::size_t stopped = 0;
   std::size_t size() const { return values[0].size(); }
 };

@@ -54,10 +54,14 @@ TEST_CASE("percentiles by selection equal those of a full sort") {
     std::vector<double> sorted = normal;
     std::sort(sorted.begin(), sorted.end());
     std::vector<double> reversed(sorted.rbegin(), sorted.rend());
-    // Large values at every 64th place mislead a strided sample, so that the
-    // brackets miss their ranks and the full selection must take over.
+    // Large values at the start of each 64th of the array, where the sample's
+    // runs are read, mislead the brackets, so that they miss their ranks and
+    // the selection over all the values must take over.
     std::vector<double> misleading = normal;
-    for (std::size_t i = 0; i < n; i += 64) misleading[i] = 1000.0 + static_cast<double>(i);
+    for (std::size_t i = 0; i < n; ++i) {
+      const std::size_t seg = std::max<std::size_t>(1, n / 64);
+      if (i % seg < (seg * 15 + 99) / 100) misleading[i] = 1000.0 + static_cast<double>(i);
+    }
     for (const std::vector<double>* x :
          {&normal, &skewed, &ties, &holes, &sorted, &reversed, &misleading}) {
       if (x == &holes && std::all_of(x->begin(), x->end(), [](double v) { return std::isnan(v); }))
