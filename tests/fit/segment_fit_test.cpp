@@ -238,9 +238,15 @@ TEST_CASE("explicit sample times give the same fit as the uniform time base they
   const SegmentFitResult u = fit_segments(rec.capture.time, cap(rec), edges);
   const SegmentFitResult e = fit_segments(explicit_times, cap(rec), edges);
   REQUIRE(e.charging.status == FitStatus::ok);
-  CHECK(e.charging.tau_s.value == u.charging.tau_s.value);
-  CHECK(e.discharging.vinf_V.sigma == u.discharging.vinf_V.sigma);
-  CHECK(e.segments.size() == u.segments.size());
+  // Each segment is solved on one thread: bit for bit the same. The joint fits sum over
+  // segments on two threads in whatever order they finish, so only to rounding.
+  REQUIRE(e.segments.size() == u.segments.size());
+  for (std::size_t k = 0; k < e.segments.size(); ++k) {
+    CHECK(e.segments[k].tau_s.value == u.segments[k].tau_s.value);
+    CHECK(e.segments[k].end_V.sigma == u.segments[k].end_V.sigma);
+  }
+  CHECK(e.charging.tau_s.value == Approx(u.charging.tau_s.value).epsilon(1e-9));
+  CHECK(e.discharging.vinf_V.sigma == Approx(u.discharging.vinf_V.sigma).epsilon(1e-9));
 }
 
 TEST_CASE("inconsistent input is refused with an exception, not fitted") {
