@@ -228,6 +228,8 @@ void LiveSession::view_loop(const std::atomic<bool>& done) {
       std::chrono::duration<double>(options_.update_interval_s));
   auto next = Clock::now() + interval;
   SampleBatch rows;
+  std::optional<WindowReading> reading;
+  auto next_measure = Clock::now();
   while (!done.load()) {
     std::this_thread::sleep_until(std::min(next, Clock::now() + std::chrono::milliseconds(20)));
     if (Clock::now() < next) continue;
@@ -241,7 +243,13 @@ void LiveSession::view_loop(const std::atomic<bool>& done) {
     SessionStatus s = status();
     if (window_) {
       window_->append(rows, options_.scale);
-      s.reading = window_->read();
+      if (Clock::now() >= next_measure) {
+        reading = window_->read();
+        next_measure =
+            Clock::now() + std::chrono::duration_cast<Clock::duration>(
+                               std::chrono::duration<double>(options_.measure_interval_s));
+      }
+      s.reading = reading;
     }
     rows.clear();
     const std::lock_guard lock(print_mutex_);

@@ -26,6 +26,7 @@ struct SessionOptions {
   bool reconnect = true;             // otherwise a disconnect ends the session
   double retry_interval_s = 0.5;     // between attempts to reopen a vanished port
   double update_interval_s = 0.25;   // between status reports
+  double measure_interval_s = 0.5;   // between measurements of the window (the costly part)
   int read_timeout_ms = 50;          // bounds how late a stop or a flush can be
 };
 

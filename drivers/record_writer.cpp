@@ -74,7 +74,7 @@ void RecordWriter::append(const SampleBatch& batch, const AdcScale& scale) {
       gap = true;
     } else {
       fmt::format_to(out, "{}", batch.t_s[i]);
-      for (const std::uint16_t c : batch.row(i)) fmt::format_to(out, ",{}", c * k);
+      for (const std::uint16_t c : batch.row(i)) buffer_ += volts_text(c, k);
       buffer_ += '\n';
       ++rows_;
     }
@@ -82,6 +82,21 @@ void RecordWriter::append(const SampleBatch& batch, const AdcScale& scale) {
   }
   // A gap is where a crash is most likely (a cable pulled): write at once.
   if (gap || buffer_.size() >= kFlushBytes) flush();
+}
+
+std::string_view RecordWriter::volts_text(std::uint16_t count, double volts_per_count) {
+  if (volts_per_count != cached_scale_) {
+    cached_scale_ = volts_per_count;
+    cached_length_.assign(65536, 0);
+    cached_text_.resize(65536);
+  }
+  auto& text = cached_text_[count];
+  if (cached_length_[count] == 0) {
+    // The shortest text that reads back to the same double: at most 24 characters.
+    const auto r = fmt::format_to_n(text.data(), text.size(), ",{}", count * volts_per_count);
+    cached_length_[count] = static_cast<std::uint8_t>(r.size);
+  }
+  return {text.data(), cached_length_[count]};
 }
 
 void RecordWriter::add_gap(double t_s) {

@@ -2,11 +2,14 @@
 // crash or a pulled cable loses at most the last fraction of a second.
 #pragma once
 
+#include <array>
 #include <chrono>
 #include <cstddef>
 #include <cstdint>
 #include <span>
 #include <string>
+#include <string_view>
+#include <vector>
 
 #include "drivers/adc_scale.h"
 #include "drivers/sample_batch.h"
@@ -50,6 +53,8 @@ class RecordWriter {
 
  private:
   void write_all(const char* data, std::size_t size);
+  // ",<volts>" for a count: a count has 65536 values, so each is formatted once.
+  std::string_view volts_text(std::uint16_t count, double volts_per_count);
 
   std::string path_;
   std::size_t channels_ = 0;
@@ -59,6 +64,9 @@ class RecordWriter {
   std::uint64_t rows_ = 0;
   std::uint64_t gaps_ = 0;
   double last_t_s_;
+  double cached_scale_ = 0.0;
+  std::vector<std::uint8_t> cached_length_;  // 0: not formatted yet
+  std::vector<std::array<char, 32>> cached_text_;
 };
 
 }  // namespace benchtau
