@@ -12,7 +12,9 @@
 // residual and the parameter order). The loss is Huber on residuals in noise sigmas; sigma is
 // estimated from the residuals unless fixed. Standard errors are the Laplace approximation at
 // the minimum: ceres::Covariance of the parameters, carried to derived figures (tau from
-// ln tau, the turnaround voltages) to first order. They count the samples' noise only: a
+// ln tau, the turnaround voltages) to first order; a phase's mean turnarounds combine its
+// tau-and-Vinf covariance with each segment's own J'J (segment_solver.cpp says how, and the
+// tests check it against a dense inverse). They count the samples' noise only: a
 // turnaround voltage also moves with its edge's timing error (slope times that error).
 // Results are plain values, in seconds and volts; an estimate that cannot be known is NaN
 // with a status saying why, never a made-up number.
@@ -33,7 +35,7 @@ enum class FitStatus {
   ok,
   too_few_samples,   // fewer usable samples than SegmentFitOptions::min_samples (or no segment)
   flat,              // no change across the segment beyond the noise: tau has no meaning
-  not_identifiable,  // ceres::Covariance found the Jacobian rank-deficient at the minimum
+  not_identifiable,  // ceres::Covariance found the Jacobian rank-deficient where the fit ended
   tau_undetermined,  // the covariance exists, but tau's relative error exceeds the limit
   no_convergence,    // the solver failed or ran out of iterations
 };
