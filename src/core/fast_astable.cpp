@@ -44,39 +44,40 @@ std::optional<OutputValues> fast_astable_outputs(const Circuit& c) {
                              : 2.0 / 3.0 * vs;
   const double lower_V = 0.5 * upper_V;
 
-  // What the capacitor node carries besides the timing path: leakage and a
-  // probe as one shunt conductance, and the currents the node's pins draw.
-  const double shunt_S = (v.leak_ohm < kOpen ? 1.0 / v.leak_ohm : 0.0) +
-                         (v.probe_cap_ohm < kOpen ? 1.0 / v.probe_cap_ohm : 0.0);
-  const double drawn_A = v.leak_A + f.threshold_current_A + f.trigger_current_A;
-  // A source e behind r into the node: e' = (e - drawn r) / (1 + shunt r), r' = r / (1 + shunt r).
-  auto into_node = [&](double e, double r, double& e_out, double& r_out) {
-    const double k = 1.0 / (1.0 + shunt_S * r);
-    e_out = (e - drawn_A * r) * k;
-    r_out = r * k;
-  };
-
-  // Charging: the supply through R1 + R2.
-  double high_e = 0.0, high_r = 0.0;
-  into_node(vs, v.upper_ohm + v.lower_ohm, high_e, high_r);
-  // Discharging: R1 to the supply and the switch (its saturation behind its
-  // resistance) meet at the discharge pin, then R2.
-  const double r1 = v.upper_ohm, ron = f.discharge_on_ohm;
+  // Charging: the supply through R1 + R2. Discharging: R1 to the supply and
+  // the switch (its saturation behind its resistance) meet at the discharge
+  // pin, then R2. Into the node, each source loses what the node's pins and
+  // leakage draw; a shunt (leakage resistance, probe) scales both by
+  // 1 / (1 + shunt r). Divisions are few and shared: they set the pace here.
+  const double r1 = v.upper_ohm, r2 = v.lower_ohm, ron = f.discharge_on_ohm;
   const double inv = 1.0 / (r1 + ron);
   const double pin_V = (vs * ron + f.discharge_sat_V * r1) * inv;
-  double low_e = 0.0, low_r = 0.0;
-  into_node(pin_V, r1 * ron * inv + v.lower_ohm, low_e, low_r);
+  const double drawn_A = v.leak_A + f.threshold_current_A + f.trigger_current_A;
+  double high_r = r1 + r2, low_r = r1 * ron * inv + r2;
+  double high_e = vs - drawn_A * high_r, low_e = pin_V - drawn_A * low_r;
+  const double shunt_S = (v.leak_ohm < kOpen ? 1.0 / v.leak_ohm : 0.0) +
+                         (v.probe_cap_ohm < kOpen ? 1.0 / v.probe_cap_ohm : 0.0);
+  if (shunt_S > 0.0) {
+    const double a = 1.0 + shunt_S * high_r, b = 1.0 + shunt_S * low_r;
+    const double q = 1.0 / (a * b);
+    high_e *= q * b;
+    high_r *= q * b;
+    low_e *= q * a;
+    low_r *= q * a;
+  }
 
-  if (!(upper_V > lower_V) || !(high_e - upper_V > 0.0) || !(lower_V - low_e > 0.0))
-    return std::nullopt;
+  const double high_margin_V = high_e - upper_V, low_margin_V = lower_V - low_e;
+  if (!(upper_V > lower_V) || !(high_margin_V > 0.0) || !(low_margin_V > 0.0)) return std::nullopt;
 
   // Each phase switches a propagation delay after its crossing (as in the model).
   const double tpd = f.propagation_delay_s;
   const double th = high_r * v.cap_F, tl = low_r * v.cap_F;
-  const double start_V = low_e + (lower_V - low_e) * exp_minus(tpd / tl);
-  const double peak_V = high_e + (upper_V - high_e) * exp_minus(tpd / th);
-  const double high_s = th * std::log((high_e - start_V) / (high_e - upper_V)) + tpd;
-  const double low_s = tl * std::log((peak_V - low_e) / (lower_V - low_e)) + tpd;
+  const double per_tau2 = tpd / (th * tl);  // tpd / tl = per_tau2 * th, and so on
+  const double start_V = low_e + (lower_V - low_e) * exp_minus(per_tau2 * th);
+  const double peak_V = high_e + (upper_V - high_e) * exp_minus(per_tau2 * tl);
+  const double per_margin2 = 1.0 / (high_margin_V * low_margin_V);
+  const double high_s = th * std::log((high_e - start_V) * low_margin_V * per_margin2) + tpd;
+  const double low_s = tl * std::log((peak_V - low_e) * high_margin_V * per_margin2) + tpd;
   const double period_s = high_s + low_s;
   const double per = 1.0 / period_s;
   return OutputValues{high_s, low_s, period_s, per, high_s * per, peak_V, start_V};

@@ -138,3 +138,26 @@ TEST_CASE("simulate: options that do not fit the design are input errors") {
         "benchtau: --seconds: 10.0 s at 100 MS/s would be 1000000001 samples; the limit is "
         "50000000\n");
 }
+
+TEST_CASE("simulate writes nothing for a design that cannot oscillate, exit 1") {
+  // The control pin tied to the output through 1 ohm (see predict's tests).
+  const fs::path d = write_file("stuck-sim.toml", R"(supply_V = 9.0
+family = "bipolar"
+[circuit]
+kind = "astable-two-resistor"
+control = "feedback-from-output"
+[parts]
+R1 = { value = "10k", role = "upper" }
+R2 = { value = "47k", role = "lower" }
+C1 = { value = "100n", kind = "film", role = "timing-cap" }
+R3 = { value = "1", role = "control-res" }
+)");
+  const fs::path csv = scratch("stuck.csv");
+  fs::remove(csv);
+  const Run r = run(exe() + " simulate --design '" + d.string() + "' -o '" + csv.string() + "'");
+  CHECK(r.exit_code == 1);
+  CHECK(r.out.empty());
+  CHECK(r.err.rfind("benchtau: " + d.string() + ": will not oscillate: while discharging", 0) == 0);
+  CHECK(r.err.find("; nothing written\n") != std::string::npos);
+  CHECK_FALSE(fs::exists(csv));
+}
