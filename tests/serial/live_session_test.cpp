@@ -156,7 +156,7 @@ TEST_CASE("a pulled cable leaves a gap row; the session reconnects and records o
   CHECK(r.capture.time.at(4) == r.capture.time.at(3) + 0.001);
 }
 
-TEST_CASE("--seconds ends the record at the sample, mid-read") {
+TEST_CASE("a --seconds limit ends the record at the sample, mid-read") {
   std::string text;
   for (int i = 0; i < 100; ++i) text += fmt::format("{}\n", i);
   Opener opener;
