@@ -33,9 +33,11 @@ std::string link_text(const SessionStatus& s) {
 std::string counters_text(const SessionStatus& s) {
   const StreamCounters& c = s.counters;
   if (s.format == StreamFormat::frames) {
-    return fmt::format("lost frames {}, CRC errors {}, skipped bytes {}, restarts {}",
-                       c.frames.lost_frames, c.frames.crc_errors, c.frames.skipped_bytes,
-                       c.frames.restarts + c.frames.other_layout);
+    return fmt::format(
+        "lost frames {}, CRC errors {}, skipped bytes {}, restarts {}{}", c.frames.lost_frames,
+        c.frames.crc_errors, c.frames.skipped_bytes, c.frames.restarts,
+        c.frames.other_layout ? fmt::format(", frames of another layout {}", c.frames.other_layout)
+                              : "");
   }
   return fmt::format("skipped lines {}, restarts {}, time gaps {}", c.text.skipped_lines,
                      c.text.restarts, c.text.time_gaps);

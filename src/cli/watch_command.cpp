@@ -93,7 +93,8 @@ void add_watch_command(CLI::App& app, int& exit_code) {
                   "write every sample to this CSV capture as it arrives (never replaces a file "
                   "unless --force)");
   cmd->add_flag("--force", args->force, "replace the --record file if it exists");
-  cmd->add_option("--window", args->window_s, "seconds of samples the view measures")
+  cmd->add_option("--window", args->window_s,
+                  "seconds of samples the view measures (at most the newest 131072 samples)")
       ->capture_default_str()
       ->check(CLI::Range(0.01, 3600.0));
   cmd->add_option("--out", args->nodes.out, "output-pin channel: ch1, ch2... (default: guessed)");

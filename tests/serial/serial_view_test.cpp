@@ -87,6 +87,12 @@ TEST_CASE("the summary when a session ends") {
         "  errors      lost frames 3, CRC errors 1, skipped bytes 40, restarts 0\n"
         "  record      bench.csv, closed\n");
   SessionStatus s = frames_status();
+  s.counters.frames.other_layout = 5;
+  CHECK(
+      session_summary(s, {}, 0, false)
+          .find(
+              "  errors      lost frames 3, CRC errors 1, skipped bytes 40, restarts 0, frames of "
+              "another layout 5\n") != std::string::npos);
   s.over_range = 9;
   CHECK(session_summary(s, {}, 0, false)
             .find("  over range  9 counts above the ADC's full scale: check --bits\n") !=
