@@ -3,6 +3,7 @@
 
 #include <fmt/format.h>
 #include <sys/wait.h>
+#include <unistd.h>
 #include <catch2/catch.hpp>
 
 #include <array>
@@ -21,9 +22,11 @@ struct Run {
   std::string err;  // standard error
 };
 
-// Runs a shell command line, capturing both streams (stderr through a file).
+// Runs a shell command line, capturing both streams (stderr through a file
+// named for this process, since CTest runs test cases side by side).
 inline Run run(const std::string& command) {
-  const fs::path err_path = fs::path(BENCHTAU_BINARY_DIR) / "cli-predict-stderr.txt";
+  const fs::path err_path =
+      fs::path(BENCHTAU_BINARY_DIR) / fmt::format("cli-stderr-{}.txt", ::getpid());
   const std::string full = fmt::format("{} 2>'{}'", command, err_path.string());
   Run r;
   std::FILE* p = ::popen(full.c_str(), "r");

@@ -11,33 +11,14 @@
 #include <string>
 
 #include "src/core/synth.h"
+#include "tests/cli/cli_support.h"
 
 namespace {
 
 namespace fs = std::filesystem;
 
-struct Run {
-  int exit_code = -1;
-  std::string out;  // standard output
-  std::string err;  // standard error
-};
-
-// Runs a shell command line, capturing both streams (stderr through a file).
-Run run(const std::string& command) {
-  const fs::path err_path = fs::path(BENCHTAU_BINARY_DIR) / "cli-test-stderr.txt";
-  const std::string full = fmt::format("{} 2>'{}'", command, err_path.string());
-  Run r;
-  std::FILE* p = ::popen(full.c_str(), "r");
-  REQUIRE(p != nullptr);
-  std::array<char, 4096> buf{};
-  std::size_t n = 0;
-  while ((n = std::fread(buf.data(), 1, buf.size(), p)) > 0) r.out.append(buf.data(), n);
-  const int status = ::pclose(p);
-  r.exit_code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
-  std::ifstream e(err_path);
-  r.err.assign(std::istreambuf_iterator<char>(e), std::istreambuf_iterator<char>());
-  return r;
-}
+using cli_support::Run;
+using cli_support::run;
 
 std::string exe() { return fmt::format("'{}'", BENCHTAU_EXE); }
 
