@@ -51,7 +51,7 @@ std::vector<std::string> record_lines(const fs::path& p) { return lines_of(slurp
 
 }  // namespace
 
-TEST_CASE("short reads, EINTR and timeouts lose nothing; the end of the link ends the session") {
+TEST_CASE("short reads, EINTR and timeouts lose nothing, the end of the link ends the session") {
   std::deque<FakeStep> steps;
   steps.push_back(chunk("banner v1\n10,20\n11,21\n"));
   steps.push_back(status(ReadStatus::interrupted));
@@ -113,7 +113,7 @@ TEST_CASE("a stop request ends the session at the next read, with every sample r
   CHECK(slurp(p) == "t_s,ch1_V,ch2_V\n0,0.0048828125,0.009765625\n0.1,0.0146484375,0.01953125\n");
 }
 
-TEST_CASE("a pulled cable leaves a gap row; the session reconnects and records on") {
+TEST_CASE("a pulled cable leaves a gap row, the session reconnects and records on") {
   Opener opener;
   opener.missing_before_each = 3;  // the port is away for three attempts
   opener.sources.push_back(std::make_unique<FakeSource>(

@@ -47,7 +47,7 @@ TEST_CASE("frames are detected from the first good frame, even after noise") {
   CHECK(d.counters().bytes == bytes.size());
 }
 
-TEST_CASE("text is detected after three whole printable lines; the first may be cut off") {
+TEST_CASE("text is detected after three whole printable lines, the first may be cut off") {
   StreamDecoder d(detect());
   SampleBatch out;
   const auto part = bytes_of(

@@ -36,7 +36,7 @@ SampleBatch feed(TextDecoder& d, std::string_view text, std::size_t piece = 0) {
 
 }  // namespace
 
-TEST_CASE("commas, spaces, tabs and CR LF all separate; a partial line waits") {
+TEST_CASE("commas, spaces, tabs and CR LF all separate, a partial line waits") {
   for (const std::size_t piece : {0, 1, 3}) {
     TextDecoder d(rate_options(100.0));
     const SampleBatch out = feed(d, "12,34\r\n56 78\n9\t10\n11, \t 12\n13,1", piece);
@@ -48,7 +48,7 @@ TEST_CASE("commas, spaces, tabs and CR LF all separate; a partial line waits") {
   }
 }
 
-TEST_CASE("banner and debug lines are skipped and counted; in rate mode they leave a gap") {
+TEST_CASE("banner and debug lines are skipped and counted, in rate mode they leave a gap") {
   TextDecoder d(rate_options(1000.0));
   const SampleBatch out = feed(d,
                                "ADC board ready\n"
@@ -81,7 +81,7 @@ TEST_CASE("a line too long to be a sample is skipped whole, even split across re
   CHECK(out.row(2)[0] == 3);
 }
 
-TEST_CASE("timestamps in microseconds give the times; a jump back is a restart") {
+TEST_CASE("timestamps in microseconds give the times, a jump back is a restart") {
   TextDecoder d(stamp_options());
   const SampleBatch out = feed(d,
                                "1000000,10,20\n"
@@ -184,8 +184,8 @@ TEST_CASE("a restart on the last line before the link drops is kept when the str
 TEST_CASE("timestamps too far from zero for a microsecond step are dropped, times still rise") {
   TextDecoder d(stamp_options());
   // 10^18 us: a double there cannot tell one microsecond from the next.
-  const SampleBatch out =
-      feed(d, "1000,1\n2000,2\n1000000000000000000,3\n1000000000000000001,4\n1000000000000000002,5\n");
+  const SampleBatch out = feed(
+      d, "1000,1\n2000,2\n1000000000000000000,3\n1000000000000000001,4\n1000000000000000002,5\n");
   for (std::size_t i = 1; i < out.rows(); ++i) CHECK(out.t_s[i] > out.t_s[i - 1]);
   CHECK(d.counters().skipped_lines >= 1);
 }
