@@ -88,7 +88,7 @@ TEST_CASE("cli: capture never replaces an existing file without --force") {
 }
 
 TEST_CASE(
-    "cli: watch shows the timer live, records it, stops on SIGINT; measure reads the record") {
+    "cli: watch shows the timer live, records it, stops on SIGINT, and measure reads the record") {
   PtyPair pty;
   const fs::path rec = scratch("watch.csv"), out = scratch("watch-out.txt"),
                  err = scratch("watch-err.txt");
