@@ -126,7 +126,7 @@ TEST_CASE("predict gives the same JSON whatever the thread count") {
   CHECK(one.out.find("\"chip_spread\": true") != std::string::npos);
 }
 
-TEST_CASE("predict: a design that cannot oscillate says why, with no timing numbers; exit 1") {
+TEST_CASE("predict: a design that cannot oscillate says why, with no timing numbers, exit 1") {
   const fs::path d = write_file("stuck.toml", kStuck);
   const Run r = run(exe() + " predict --design '" + d.string() + "'");
   CHECK(r.exit_code == 1);

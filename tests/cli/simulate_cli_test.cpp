@@ -96,7 +96,7 @@ TEST_CASE("simulate never writes over the design file it reads") {
   CHECK(read_file(d) == kOneShot);
 }
 
-TEST_CASE("simulate a monostable as a pulse train; measure finds the predicted pulse") {
+TEST_CASE("simulate a monostable as a pulse train, measure finds the predicted pulse") {
   const fs::path d = write_file("one-shot.toml", kOneShot);
   const fs::path csv = scratch("one-shot.csv");
   fs::remove(csv);

@@ -81,7 +81,7 @@ TEST_CASE("one resistor from a rail-to-rail output gives close to 50 % duty") {
   CHECK(p.high_s == Approx(std::log(2.0) * 100.1e3 * 10e-9).epsilon(1e-3));
 }
 
-TEST_CASE("loading the control pin to ground speeds it up; with 1 k the low time dominates") {
+TEST_CASE("loading the control pin to ground speeds it up, with 1 k the low time dominates") {
   // Common practice. Loaded with Rx, the control pin sits at 2/3 Vs scaled by
   // Rx / (Rx + 2/3 Rd): lower thresholds, a shorter climb, a faster timer.
   const CyclePrediction free = predict_cycle(two_resistor(10e3, 47e3, 100e-9));

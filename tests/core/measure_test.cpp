@@ -133,7 +133,7 @@ TEST_CASE("partial cycles at both ends are left out and reported") {
   CHECK(r.summary.cycles == 4);
 }
 
-TEST_CASE("fewer than two whole cycles is a warning; none is a problem") {
+TEST_CASE("fewer than two whole cycles is a warning, none is a problem") {
   const Measurement one = measure(record(1.9, 300.0).capture, out_and_cap());
   REQUIRE(find(one, "few_cycles") != nullptr);
   CHECK(find(one, "few_cycles")->severity == Severity::warning);

@@ -197,7 +197,7 @@ TEST_CASE("Monte Carlo mean and std of the period follow first-order propagation
   CHECK(period.percentile[6] > t * (1 + 2.5 * rel));
 }
 
-TEST_CASE("parts without a tolerance are held; chip spread adds the timer's figures") {
+TEST_CASE("parts without a tolerance are held, chip spread adds the timer's figures") {
   Design d = classic();
   const std::vector<Variation> parts = design_variations(d, false);
   REQUIRE(parts.size() == 3);

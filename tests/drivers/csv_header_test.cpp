@@ -72,7 +72,7 @@ TEST_CASE("csv: header units scale the values to SI") {
   CHECK(has_note(r, "Column \"CH1 (mV)\" is in mV; its values were converted to V."));
 }
 
-TEST_CASE("csv: a column without a unit keeps an empty unit; an unknown unit is kept as written") {
+TEST_CASE("csv: a column without a unit keeps an empty unit, an unknown unit is kept as written") {
   const auto r = read("time,out,temp (degC)\n0,1,20\n1,2,21\n");
   CHECK(r.capture.channels[0].unit.empty());
   CHECK(r.capture.channels[1].unit == "degC");
