@@ -25,7 +25,7 @@ TEST_CASE("streams are fixed by seed and stream index, and differ between them")
   CHECK(mix64(1) != 1);
 }
 
-TEST_CASE("uniform draws fill [0, 1) evenly") {
+TEST_CASE("uniform draws fill 0 to 1 evenly and never reach 1") {
   Xoshiro256 rng(3, 0);
   constexpr int kBins = 20, kN = 200000;
   std::array<int, kBins> count{};
