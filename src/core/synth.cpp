@@ -7,23 +7,18 @@
 #include <random>
 
 namespace benchtau {
-namespace {
 
-// Time for V to go from v0 toward target until it reaches v1, on tau.
-double time_to(double tau_s, double v0, double v1, double target) {
+double exponential_time_s(double tau_s, double v0, double v1, double target) {
   const double ratio = (target - v0) / (target - v1);
   if (!(ratio > 0.0) || !std::isfinite(ratio)) return std::numeric_limits<double>::quiet_NaN();
   return tau_s * std::log(ratio);
 }
-
-}  // namespace
-
 double AstableWave::high_s() const {
-  return time_to(charge_tau_s, lower_V, upper_V, charge_target_V);
+  return exponential_time_s(charge_tau_s, lower_V, upper_V, charge_target_V);
 }
 
 double AstableWave::low_s() const {
-  return time_to(discharge_tau_s, upper_V, lower_V, discharge_target_V);
+  return exponential_time_s(discharge_tau_s, upper_V, lower_V, discharge_target_V);
 }
 
 AstableWave two_resistor_astable(double supply_V, double r1_ohm, double r2_ohm, double c_F,
@@ -77,7 +72,7 @@ SynthRecord synth_astable(const AstableWave& wave, const SynthOptions& o) {
   if (o.power_up) {
     phase_start = o.off_s;
     v_start = 0.0;
-    phase_len = time_to(wave.charge_tau_s, 0.0, wave.upper_V, wave.charge_target_V);
+    phase_len = exponential_time_s(wave.charge_tau_s, 0.0, wave.upper_V, wave.charge_target_V);
   }
   if (o.power_up && o.off_s > 0.0) {
     Edge on;

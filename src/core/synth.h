@@ -38,6 +38,10 @@ struct AstableWave {
 AstableWave two_resistor_astable(double supply_V, double r1_ohm, double r2_ohm, double c_F,
                                  double out_drop_V = 1.7, double out_low_V = 0.1);
 
+// Time an exponential on tau_s takes to go from v0 toward target until it
+// reaches v1; NaN when target does not lie beyond v1.
+double exponential_time_s(double tau_s, double v0, double v1, double target);
+
 struct SynthOptions {
   double rate_Hz = 100e3;
   double duration_s = 10e-3;

@@ -7,18 +7,8 @@
 #include <random>
 
 namespace benchtau {
-namespace {
-
-double time_to(double tau_s, double v0, double v1, double target) {
-  const double ratio = (target - v0) / (target - v1);
-  if (!(ratio > 0.0) || !std::isfinite(ratio)) return std::numeric_limits<double>::quiet_NaN();
-  return tau_s * std::log(ratio);
-}
-
-}  // namespace
-
 double PulseWave::pulse_s() const {
-  return time_to(charge_tau_s, floor_V, peak_V, charge_target_V);
+  return exponential_time_s(charge_tau_s, floor_V, peak_V, charge_target_V);
 }
 
 SynthRecord synth_pulse_train(const PulseWave& wave, double every_s, double first_trigger_s,
@@ -67,8 +57,8 @@ SynthRecord synth_pulse_train(const PulseWave& wave, double every_s, double firs
         v_start = cap_at(next_trigger);
         phase_start = next_trigger;
         high = true;
-        pulse_end =
-            phase_start + time_to(wave.charge_tau_s, v_start, wave.peak_V, wave.charge_target_V);
+        pulse_end = phase_start + exponential_time_s(wave.charge_tau_s, v_start, wave.peak_V,
+                                                     wave.charge_target_V);
         rec.edges.push_back({phase_start, EdgeKind::rising, i, false, v_start});
         next_trigger += every_s;
       } else if (high && t >= pulse_end) {
