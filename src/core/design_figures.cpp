@@ -26,6 +26,7 @@ constexpr std::array kFigures{
     Figure{"out_low_V", &TimerFigures::out_low_V, "V", Sign::non_negative},
     Figure{"out_sink_ohm", &TimerFigures::out_sink_ohm, "ohm", Sign::non_negative},
     Figure{"discharge_on_ohm", &TimerFigures::discharge_on_ohm, "ohm", Sign::non_negative},
+    Figure{"discharge_sat_V", &TimerFigures::discharge_sat_V, "V", Sign::non_negative},
     Figure{"threshold_current_A", &TimerFigures::threshold_current_A, "A", Sign::any},
     Figure{"trigger_current_A", &TimerFigures::trigger_current_A, "A", Sign::any},
     Figure{"reset_threshold_V", &TimerFigures::reset_threshold_V, "V", Sign::non_negative},

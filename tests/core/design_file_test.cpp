@@ -7,6 +7,7 @@
 #include <string>
 #include <string_view>
 
+#include "src/core/circuit.h"
 #include "src/core/design_file.h"
 #include "tests/core/design_test_files.h"
 
@@ -24,6 +25,7 @@ void check_figures_equal(const TimerFigures& a, const TimerFigures& b) {
   CHECK(a.out_low_V == b.out_low_V);
   CHECK(a.out_sink_ohm == b.out_sink_ohm);
   CHECK(a.discharge_on_ohm == b.discharge_on_ohm);
+  CHECK(a.discharge_sat_V == b.discharge_sat_V);
   CHECK(a.threshold_current_A == b.threshold_current_A);
   CHECK(a.trigger_current_A == b.trigger_current_A);
   CHECK(a.reset_threshold_V == b.reset_threshold_V);
@@ -341,6 +343,27 @@ TEST_CASE("timer figures overridden by number or engineering string, the rest ke
   CHECK(f.out_low_spread_V == typical.out_low_spread_V);
   CHECK(f.out_high_drop_spread_V == typical.out_high_drop_spread_V);
   CHECK(nominal_circuit(d).v.chip.divider_ohm == Approx(4.7e3));
+}
+
+TEST_CASE("the discharge switch's saturation voltage is a [timer] figure") {
+  const Design typical = read(kExample);
+  const Design d = read(std::string(kExample) + "[timer]\ndischarge_sat_V = \"200m\"\n");
+  CHECK(d.figures.discharge_sat_V == Approx(0.2));
+  CHECK(nominal_circuit(d).v.chip.discharge_sat_V == Approx(0.2));
+  CHECK(read(std::string(kExample) + "[timer]\ndischarge_sat_V = 0\n").figures.discharge_sat_V ==
+        0.0);
+  CHECK(error_of(std::string(kExample) + "[timer]\ndischarge_sat_V = -0.1\n") ==
+        "board.toml:17: discharge_sat_V in [timer] must not be negative, found -0.1");
+  // It reaches the model: the discharging target of the capacitor node moves
+  // by the saturation's change seen through the divider R1 : Ron (superposition,
+  // a textbook property of linear networks), and the charging target not at all.
+  const CyclePrediction a = predict_cycle(nominal_circuit(typical));
+  const CyclePrediction b = predict_cycle(nominal_circuit(d));
+  const double r1_ohm = 10e3, ron_ohm = typical.figures.discharge_on_ohm;
+  const double change_V = 0.2 - typical.figures.discharge_sat_V;
+  CHECK(b.low.target_V - a.low.target_V == Approx(change_V * r1_ohm / (r1_ohm + ron_ohm)));
+  CHECK(b.high.target_V == a.high.target_V);
+  CHECK(b.low_s > a.low_s);
 }
 
 TEST_CASE("capture columns by number, and the instruments' input resistance") {
