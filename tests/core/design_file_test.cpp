@@ -345,7 +345,7 @@ TEST_CASE("timer figures overridden by number or engineering string, the rest ke
   CHECK(nominal_circuit(d).v.chip.divider_ohm == Approx(4.7e3));
 }
 
-TEST_CASE("the discharge switch's saturation voltage is a [timer] figure") {
+TEST_CASE("the discharge switch's saturation voltage is one of the timer figures") {
   const Design typical = read(kExample);
   const Design d = read(std::string(kExample) + "[timer]\ndischarge_sat_V = \"200m\"\n");
   CHECK(d.figures.discharge_sat_V == Approx(0.2));
