@@ -10,6 +10,7 @@
 #include <sys/mman.h>
 #endif
 
+#include "src/core/cycle_timing.h"
 #include "src/core/fast_astable.h"
 #include "src/core/order_statistics.h"
 #include "src/core/random.h"
@@ -112,9 +113,11 @@ Draws monte_carlo_draws(const Circuit& nominal, std::span<const Variation> varia
       }
       std::optional<OutputValues> o = fast ? fast_astable_outputs(c) : std::nullopt;
       if (!o) {
-        const CyclePrediction p = predict_cycle(c);
-        if (!p.oscillates) ++stopped[b];
-        o = outputs_of(p);  // NaN for a draw that stops
+        // The times and turnarounds alone: a draw needs nothing else.
+        const CycleTiming t = cycle_timing(c);
+        if (!t.oscillates) ++stopped[b];
+        o = OutputValues{t.high_s, t.low_s,     t.period_s, t.frequency_Hz,
+                         t.duty,   t.cap_max_V, t.cap_min_V};  // NaN for a draw that stops
       }
       for (std::size_t k = 0; k < kOutputs; ++k) d.values[k][i] = (*o)[k];
     }
