@@ -71,6 +71,8 @@ struct PhaseFit {
   Estimate vinf_V;
   Estimate start_V;  // the curve at the segments' start edges, mean over the segments
   Estimate end_V;    // the curve at their end edges, mean over the segments
+  // Covariance of ln(tau) and Vinf in the joint fit (the circuit fit needs both together).
+  double cov_log_tau_vinf = std::numeric_limits<double>::quiet_NaN();
   double rms_V = std::numeric_limits<double>::quiet_NaN();
   std::size_t used = 0;  // samples in the joint fit
   int iterations = 0;

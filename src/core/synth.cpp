@@ -36,34 +36,47 @@ AstableWave two_resistor_astable(double supply_V, double r1_ohm, double r2_ohm, 
   return w;
 }
 
-SynthRecord synth_astable(const AstableWave& wave, const SynthOptions& o) {
-  SynthRecord rec;
-  Capture& c = rec.capture;
+std::size_t SynthOptions::samples() const {
+  return static_cast<std::size_t>(std::floor(duration_s * rate_Hz)) + 1;
+}
+
+Capture synth_capture(const SynthOptions& o) {
+  Capture c;
   c.source = "<synthetic>";
   c.time_origin = "synthetic uniform rate";
   c.time.dt_s = 1.0 / o.rate_Hz;
-  c.time.t0_s = 0.0;
-  const auto n = static_cast<std::size_t>(std::floor(o.duration_s * o.rate_Hz)) + 1;
-  auto channel = [](const char* name, std::size_t column) {
+  const std::size_t n = o.samples();
+  const std::string_view names[] = {"out_V", "cap_V", "ctl_V"};
+  for (std::size_t k = 0; k < (o.with_ctl ? 3U : 2U); ++k) {
     Channel ch;
-    ch.name = name;
+    ch.name = names[k];
     ch.unit = "V";
-    ch.column = column;
-    return ch;
-  };
-  c.channels.push_back(channel("out_V", 1));
-  c.channels.push_back(channel("cap_V", 2));
-  if (o.with_ctl) c.channels.push_back(channel("ctl_V", 3));
-  for (Channel& ch : c.channels) ch.values.reserve(n);
+    ch.column = k + 1;
+    ch.values.reserve(n);
+    c.channels.push_back(std::move(ch));
+  }
+  return c;
+}
 
-  std::mt19937_64 rng(o.seed);
-  std::normal_distribution<double> noise(0.0, 1.0);
-  const double lsb = o.bits > 0 ? o.full_scale_V / std::ldexp(1.0, o.bits) : 0.0;
-  auto adc = [&](double v) {
-    if (o.noise_V > 0.0) v += o.noise_V * noise(rng);
-    if (lsb > 0.0) v = std::clamp(std::round(v / lsb), 0.0, std::ldexp(1.0, o.bits) - 1.0) * lsb;
-    return v;
-  };
+SynthAdc::SynthAdc(const SynthOptions& o)
+    : noise_V_(o.noise_V),
+      lsb_V_(o.bits > 0 ? o.full_scale_V / std::ldexp(1.0, o.bits) : 0.0),
+      top_code_(o.bits > 0 ? std::ldexp(1.0, o.bits) - 1.0 : 0.0),
+      rng_(o.seed) {}
+
+double SynthAdc::operator()(double v) {
+  if (noise_V_ > 0.0) v += noise_V_ * noise_(rng_);
+  if (lsb_V_ > 0.0) v = std::clamp(std::round(v / lsb_V_), 0.0, top_code_) * lsb_V_;
+  return v;
+}
+
+SynthRecord synth_astable(const AstableWave& wave, const SynthOptions& o) {
+  SynthRecord rec;
+  rec.capture = synth_capture(o);
+  Capture& c = rec.capture;
+  c.time.t0_s = 0.0;
+  SynthAdc adc(o);
+  const std::size_t n = o.samples();
 
   bool high = true;
   double phase_start = -o.phase_s;

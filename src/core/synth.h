@@ -2,6 +2,7 @@
 #pragma once
 
 #include <cstdint>
+#include <random>
 #include <vector>
 
 #include "src/core/capture.h"
@@ -53,6 +54,8 @@ struct SynthOptions {
   double noise_V = 0.0;  // Gaussian, RMS, added before quantisation
   std::uint64_t seed = 1;
   bool with_ctl = true;  // add a control-pin channel
+
+  std::size_t samples() const;  // in duration_s at rate_Hz, both ends included
 };
 
 struct SynthRecord {
@@ -61,5 +64,24 @@ struct SynthRecord {
 };
 
 SynthRecord synth_astable(const AstableWave& wave, const SynthOptions& options);
+
+// Shared by the synthetic sources: a capture with the uniform time base and
+// the empty channels that `options` asks for, reserved for every sample.
+Capture synth_capture(const SynthOptions& options);
+
+// The synthetic ADC: seeded Gaussian noise, then quantisation to the bits
+// asked for over [0, full_scale_V].
+class SynthAdc {
+ public:
+  explicit SynthAdc(const SynthOptions& options);
+  double operator()(double v);
+
+ private:
+  double noise_V_;
+  double lsb_V_;
+  double top_code_;
+  std::mt19937_64 rng_;
+  std::normal_distribution<double> noise_{0.0, 1.0};
+};
 
 }  // namespace benchtau

@@ -14,29 +14,10 @@ double PulseWave::pulse_s() const {
 SynthRecord synth_pulse_train(const PulseWave& wave, double every_s, double first_trigger_s,
                               const SynthOptions& o) {
   SynthRecord rec;
+  rec.capture = synth_capture(o);
   Capture& c = rec.capture;
-  c.source = "<synthetic>";
-  c.time_origin = "synthetic uniform rate";
-  c.time.dt_s = 1.0 / o.rate_Hz;
-  const auto n = static_cast<std::size_t>(std::floor(o.duration_s * o.rate_Hz)) + 1;
-  const char* names[] = {"out_V", "cap_V", "ctl_V"};
-  for (std::size_t k = 0; k < (o.with_ctl ? 3U : 2U); ++k) {
-    Channel ch;
-    ch.name = names[k];
-    ch.unit = "V";
-    ch.column = k + 1;
-    ch.values.reserve(n);
-    c.channels.push_back(std::move(ch));
-  }
-
-  std::mt19937_64 rng(o.seed);
-  std::normal_distribution<double> noise(0.0, 1.0);
-  const double lsb = o.bits > 0 ? o.full_scale_V / std::ldexp(1.0, o.bits) : 0.0;
-  auto adc = [&](double v) {
-    if (o.noise_V > 0.0) v += o.noise_V * noise(rng);
-    if (lsb > 0.0) v = std::clamp(std::round(v / lsb), 0.0, std::ldexp(1.0, o.bits) - 1.0) * lsb;
-    return v;
-  };
+  SynthAdc adc(o);
+  const std::size_t n = o.samples();
 
   // The phase in force: its start time and voltage, and where it heads.
   bool high = false;
