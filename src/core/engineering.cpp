@@ -76,19 +76,30 @@ std::string format_eng(double value, std::string_view unit, int significant) {
   if (std::isinf(value)) return fmt::format("{}inf {}", value < 0 ? "-" : "", unit);
   const std::string space_unit = unit.empty() ? std::string() : fmt::format(" {}", unit);
   if (value == 0.0) return fmt::format("0{}", space_unit);
-  int exp3 = static_cast<int>(std::floor(std::log10(std::fabs(value)) / 3.0)) * 3;
-  exp3 = std::clamp(exp3, -15, 12);
-  double mantissa = value / std::pow(10.0, exp3);
-  int decimals = significant - 1 - static_cast<int>(std::floor(std::log10(std::fabs(mantissa))));
-  // Rounding can carry into the next prefix (999.96 m -> 1.00).
-  const double rounded = std::round(mantissa * std::pow(10.0, std::max(decimals, 0))) /
-                         std::pow(10.0, std::max(decimals, 0));
-  if (std::fabs(rounded) >= 1000.0 && exp3 < 12) {
-    exp3 += 3;
-    mantissa = value / std::pow(10.0, exp3);
-    decimals = significant - 1;
+  significant = std::max(significant, 1);
+  // Round once, in decimal, to the significant figures ("9.9996" -> "1.000e+01"),
+  // and place the point from the rounded exponent: the rounding then carries
+  // into the next decade and prefix (99.96 m -> 100 m, 999.96 u -> 1.00 m),
+  // and the figures are never more than asked for (0.1 V is "100 mV").
+  const std::string sci = fmt::format("{:.{}e}", std::fabs(value), significant - 1);
+  const std::size_t e = sci.find('e');
+  std::string digits = sci.substr(0, e);
+  digits.erase(std::remove(digits.begin(), digits.end(), '.'), digits.end());
+  int exp10 = 0;
+  std::from_chars(sci.data() + e + 1 + (sci[e + 1] == '+' ? 1 : 0), sci.data() + sci.size(), exp10);
+  const int exp3 = std::clamp(static_cast<int>(std::floor(exp10 / 3.0)) * 3, -15, 12);
+  // The digits before the point: 1 to 3, more or fewer at the ends of the prefixes.
+  const int whole = exp10 - exp3 + 1;
+  std::string number;
+  if (whole <= 0) {
+    number = "0." + std::string(static_cast<std::size_t>(-whole), '0') + digits;
+  } else if (static_cast<std::size_t>(whole) >= digits.size()) {
+    number = digits + std::string(static_cast<std::size_t>(whole) - digits.size(), '0');
+  } else {
+    const auto w = static_cast<std::size_t>(whole);
+    number = digits.substr(0, w) + "." + digits.substr(w);
   }
-  decimals = std::max(decimals, 0);
+  if (value < 0.0) number.insert(0, "-");
   std::string_view symbol;
   if (exp3 != 0) {
     for (const Prefix& p : kPrefixes) {
@@ -98,7 +109,6 @@ std::string format_eng(double value, std::string_view unit, int significant) {
       }
     }
   }
-  const std::string number = fmt::format("{:.{}f}", mantissa, decimals);
   if (unit.empty() && symbol.empty()) return number;
   return fmt::format("{} {}{}", number, symbol, unit);
 }

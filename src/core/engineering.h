@@ -7,8 +7,10 @@
 
 namespace benchtau {
 
-// Three significant figures with an SI prefix: format_eng(0.00487, "s") is
-// "4.87 ms"; format_eng(6.01, "V") is "6.01 V". NaN prints as "-".
+// Three significant figures (exactly: trailing zeros are kept only as
+// figures) with an SI prefix: format_eng(0.00487, "s") is "4.87 ms",
+// format_eng(6.01, "V") is "6.01 V", format_eng(0.1, "V") is "100 mV" and
+// format_eng(1.2e-6, "s") is "1.20 us". NaN prints as "-".
 std::string format_eng(double value, std::string_view unit, int significant = 3);
 
 // A percentage of a fraction: format_percent(0.523) is "52.3 %".

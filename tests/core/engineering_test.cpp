@@ -27,6 +27,27 @@ TEST_CASE("format_eng carries rounding into the next prefix") {
   CHECK(format_eng(999.4e-6, "s") == "999 us");
 }
 
+TEST_CASE("format_eng gives exactly the significant figures asked for, at a decade too") {
+  // Rounding to three significant figures (common practice): a value that
+  // rounds up into the next decade keeps three figures, not four.
+  CHECK(format_eng(0.1, "V") == "100 mV");
+  CHECK(format_eng(-0.1, "V") == "-100 mV");
+  CHECK(format_eng(0.3, "V") == "300 mV");
+  CHECK(format_eng(99.96e-3, "V") == "100 mV");
+  CHECK(format_eng(9.9996, "V") == "10.0 V");
+  CHECK(format_eng(1.0, "V") == "1.00 V");
+  CHECK(format_eng(0.001, "s") == "1.00 ms");
+  CHECK(format_eng(1e3, "ohm") == "1.00 kohm");
+  CHECK(format_eng(10e3, "ohm") == "10.0 kohm");
+  CHECK(format_eng(0.5, "") == "500 m");
+  CHECK(format_eng(4.87e-3, "s", 2) == "4.9 ms");
+  CHECK(format_eng(0.1, "V", 2) == "100 mV");
+  CHECK(format_eng(0.1234, "V", 4) == "123.4 mV");
+  // Beyond the prefixes, the figures stay and the point moves.
+  CHECK(format_eng(1e-18, "F") == "0.00100 fF");
+  CHECK(format_eng(2.5e16, "Hz") == "25000 THz");
+}
+
 TEST_CASE("format_percent") {
   CHECK(format_percent(0.523) == "52.3 %");
   CHECK(format_percent(0.5, 2) == "50.00 %");
