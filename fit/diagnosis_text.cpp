@@ -90,9 +90,15 @@ Suspect suspect_of(const DiagnosisContext& c, const Scored& s) {
   return out;
 }
 
-// The data's share of the evidence between two explanations: their fits' chi-squares.
-double data_log_ratio(const Scored& a, const Scored& b) {
-  return -0.5 * (a.fit.chi2_data - b.fit.chi2_data);
+// The evidence between two explanations without their prior weights: what the captures say,
+// through each explanation's fit and the tolerances it must strain to get there.
+double evidence_log_ratio(const Scored& a, const Scored& b) {
+  return a.log_evidence - b.log_evidence;
+}
+
+// Below a ratio of 3 the captures do not decide between them: the weights do.
+bool ranked_by_weights(const Scored& a, const Scored& b) {
+  return evidence_log_ratio(a, b) < std::log(3.0);
 }
 
 }  // namespace
@@ -103,10 +109,10 @@ std::vector<Suspect> describe_suspects(const DiagnosisContext& c) {
     const Scored& s = c.scored[i];
     if (!s.ok || s.explanation.kind == ExplanationKind::all_in_tolerance) continue;
     Suspect sp = suspect_of(c, s);
-    // Its lead over the next comes from the priors when the fits themselves differ by less
-    // than a likelihood ratio of 3.
+    // Its lead over the next comes from the priors when the evidence alone gives it less
+    // than 3 to 1.
     if (i + 1 < c.scored.size() && c.scored[i + 1].ok) {
-      sp.ranked_by_prior = std::fabs(data_log_ratio(s, c.scored[i + 1])) < std::log(3.0);
+      sp.ranked_by_prior = ranked_by_weights(s, c.scored[i + 1]);
     }
     out.push_back(std::move(sp));
   }
@@ -213,7 +219,7 @@ void describe_identifiability(const DiagnosisContext& c, std::vector<std::string
                  ? std::string("all parts in tolerance")
                  : s.explanation.ref;
     };
-    const bool by_prior = std::fabs(data_log_ratio(lead, c.scored[1])) < std::log(3.0);
+    const bool by_prior = ranked_by_weights(lead, c.scored[1]);
     unseparated.push_back(fmt::format(
         "{} ({}) and {} ({}) both explain the capture{}", name(lead),
         format_percent(lead.probability, 0), name(c.scored[1]),
