@@ -5,6 +5,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <string_view>
 
 #include "src/core/engineering.h"
 #include "src/core/input_error.h"
@@ -27,6 +28,13 @@ constexpr double kFewSamples = 10.0;
 // A share of samples flat at a channel's extreme that means the instrument clipped.
 constexpr double kClippedFraction = 0.002;
 constexpr std::size_t kClippedRuns = 3;
+// A discharged capacitor rests within a few tenths of a volt of ground (the
+// switch's saturation and its share of the supply), and cannot be driven below
+// it, while an astable's lowest turnaround is about half its highest (common
+// practice). So a capacitor node resting flat at its bottom, at 0 V or above
+// and under this share of its top, is a monostable's discharged floor between
+// pulses, not an instrument's rail.
+constexpr double kDischargedFloorShare = 0.1;
 // A sampled sawtooth moves a few percent of its swing per sample at most;
 // noise moves a large part of it.
 constexpr double kRoughLimit = 0.1;
@@ -108,7 +116,9 @@ void check_channel(const Capture& c, std::size_t k, bool smooth_node, Findings& 
   for (const auto& [fraction, runs, level, which] :
        {std::tuple{s.at_max_fraction, s.at_max_runs, s.max_V, "top"},
         std::tuple{s.at_min_fraction, s.at_min_runs, s.min_V, "bottom"}}) {
-    if (fraction > kClippedFraction && runs >= kClippedRuns) {
+    const bool discharged_floor = std::string_view(which) == "bottom" && level >= 0.0 &&
+                                  level <= kDischargedFloorShare * s.max_V;
+    if (fraction > kClippedFraction && runs >= kClippedRuns && !discharged_floor) {
       add(findings, "clipped_channel", Severity::warning,
           fmt::format("channel \"{}\" sits flat at {} for {} of the samples: the instrument's "
                       "input range was probably exceeded at the {}, and turnaround voltages "

@@ -1,11 +1,16 @@
 // benchtau: what the measurement reports about awkward captures.
 #include <catch2/catch.hpp>
 
+#include <algorithm>
 #include <cmath>
 #include <random>
 
+#include "src/core/circuit.h"
+#include "src/core/engineering.h"
 #include "src/core/measure.h"
+#include "src/core/simulate.h"
 #include "src/core/synth.h"
+#include "src/core/synth_pulses.h"
 
 using namespace benchtau;
 
@@ -160,6 +165,57 @@ TEST_CASE("a clipped capacitor channel is reported") {
   CHECK(find(r, "clipped_channel")->message.find("5.50 V") != std::string::npos);
   const Measurement clean = measure(record(8.0, 300.0).capture, out_and_cap());
   CHECK(find(clean, "clipped_channel") == nullptr);
+}
+
+TEST_CASE("a monostable's discharged floor is not taken for clipping, a clipped bottom is") {
+  // The model's monostable (100k, 1u on 9 V): between pulses the capacitor
+  // rests at the switch's floor, a few tens of millivolts, exactly flat.
+  Circuit c;
+  c.kind = CircuitKind::monostable;
+  c.v.timing_ohm = 100e3;
+  c.v.cap_F = 1e-6;
+  for (Family family : {Family::bipolar, Family::cmos}) {
+    c.v.family = family;
+    c.v.chip = typical_figures(family);
+    const CyclePrediction p = predict_cycle(c);
+    REQUIRE(p.oscillates);
+    INFO(family_name(family) << " floor " << p.cap_min_V << " V");
+    REQUIRE(p.cap_min_V < 0.1);
+    SynthOptions o;
+    o.rate_Hz = 10e3;
+    o.duration_s = 2.0;
+    o.bits = 12;  // the bipolar floor above the ADC's zero; the CMOS one at code 0
+    for (double noise_V : {0.0, 0.002}) {
+      o.noise_V = noise_V;
+      const SynthRecord rec = synth_pulse_train(pulse_wave(p), 0.25, 0.05, o);
+      const Measurement r = measure(rec.capture, out_and_cap());
+      CHECK(find(r, "clipped_channel") == nullptr);
+    }
+  }
+  // The same pulses cut at 5.5 V by the instrument are still clipped at the top.
+  c.v.family = Family::bipolar;
+  c.v.chip = typical_figures(Family::bipolar);
+  SynthOptions o;
+  o.rate_Hz = 10e3;
+  o.duration_s = 2.0;
+  SynthRecord cut = synth_pulse_train(pulse_wave(predict_cycle(c)), 0.25, 0.05, o);
+  for (double& v : cut.capture.channels[1].values) v = std::min(v, 5.5);
+  const Measurement top = measure(cut.capture, out_and_cap());
+  REQUIRE(find(top, "clipped_channel") != nullptr);
+  CHECK(find(top, "clipped_channel")->message.find("5.50 V") != std::string::npos);
+  // An astable's sawtooth (3 V to 6 V) cut from below at 4 V is clipping at the bottom.
+  SynthRecord rec = record(8.0, 300.0);
+  for (double& v : rec.capture.channels[1].values) v = std::max(v, 4.0);
+  const Measurement bottom = measure(rec.capture, out_and_cap());
+  REQUIRE(find(bottom, "clipped_channel") != nullptr);
+  CHECK(find(bottom, "clipped_channel")->message ==
+        "channel \"cap_V\" sits flat at 4.00 V for " +
+            format_percent(
+                static_cast<double>(std::count(rec.capture.channels[1].values.begin(),
+                                               rec.capture.channels[1].values.end(), 4.0)) /
+                static_cast<double>(rec.capture.channels[1].values.size())) +
+            " of the samples: the instrument's input range was probably exceeded at the bottom, "
+            "and turnaround voltages there are not trustworthy");
 }
 
 TEST_CASE("missing samples are counted, and no cycle is timed across them") {
