@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "src/core/engineering.h"
+#include "src/core/stop_margin.h"
 
 namespace benchtau {
 namespace {
@@ -311,6 +312,13 @@ Findings check_design(const Design& design, const Circuit& circuit,
         fmt::format("marginal: a threshold margin of {} is within the part-to-part spread of the "
                     "{}; the same design may run on one timer and stop on another",
                     V(margin_V), prediction.deciding_figure));
+  }
+  // The other side of the same edge: a circuit that stops by less than the spread.
+  if (const StopMargin stop = stop_margin(circuit, prediction); stop.marginal) {
+    add(out, "marginal", Severity::warning,
+        fmt::format("marginal: it stops because {} by {}, within the part-to-part spread of the "
+                    "{}; the same design may run on another timer",
+                    stop.what, V(stop.short_V), stop.deciding_figure));
   }
   if (!prediction.oscillates) {
     add(out, "no_oscillation", Severity::problem, describe_stop(prediction));

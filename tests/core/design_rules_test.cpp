@@ -198,6 +198,30 @@ TEST_CASE("a marginal circuit names the deciding figure") {
         "high level; the same design may run on one timer and stop on another");
 }
 
+TEST_CASE("a circuit that stops by less than the spread may run on another timer") {
+  // The same board on 5 V: the output's high level (5 V less the 1.7 V drop,
+  // and 4 mV more from the pins' net 0.4 uA through 10 k) falls short of the
+  // 3.33 V upper threshold by 29.3 mV, inside that level's 0.3 V spread.
+  const Findings f = findings_of(
+      design("supply_V = 5.0\nfamily = \"bipolar\"", "kind = \"astable-output-resistor\"",
+             "R1 = { value = \"10k\", role = \"timing-res\" }\n"
+             "C1 = { value = \"100n\", kind = \"film\", role = \"timing-cap\" }"));
+  CHECK(severity(f, "no_oscillation") == Severity::problem);
+  CHECK(severity(f, "marginal") == Severity::warning);
+  CHECK(message(f, "marginal") ==
+        "marginal: it stops because the charging target falls short of the upper threshold by "
+        "29.3 mV, within the part-to-part spread of the output high level; the same design may "
+        "run on another timer");
+  // Driven to 12 V, far above anything the 9 V supply can charge to: stopped for good.
+  const Findings far = findings_of(
+      design(kBipolar9, "kind = \"astable-two-resistor\"\ncontrol = \"driven\"\ncontrol_V = 12.0",
+             "R1 = { value = \"10k\", role = \"upper\" }\n"
+             "R2 = { value = \"47k\", role = \"lower\" }\n"
+             "C1 = { value = \"100n\", kind = \"film\", role = \"timing-cap\" }"));
+  CHECK(severity(far, "no_oscillation") == Severity::problem);
+  CHECK(message(far, "marginal") == "(no marginal)");
+}
+
 TEST_CASE("a circuit that cannot oscillate says why") {
   // The control pin tied to the output through 1 ohm: the lower threshold
   // follows the output's low level down below the discharge floor.
