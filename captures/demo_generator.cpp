@@ -72,7 +72,7 @@ void mister_dried(const std::string& dir) {
   const SynthRecord rec = synth_astable(w, o);
   File f = open_out(dir + "/mister-rev-b-unit-12.csv");
   fmt::print(f.get(), "board;greenhouse mister rev B, unit 12\n");
-  fmt::print(f.get(), "Time (us);CH1 (V);CH2 (mV)\n");
+  fmt::print(f.get(), "Time (us);out (V);cap (mV)\n");
   const Capture& c = rec.capture;
   auto comma = [](std::string s) {
     for (char& ch : s)
