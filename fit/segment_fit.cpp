@@ -177,6 +177,7 @@ SegmentFitResult fit_segments(const TimeBase& time, std::span<const double> cap_
   // Residuals are in sigmas, so Huber's threshold a is in sigmas too.
   const ceres::HuberLoss huber(o.huber_sigmas > 0.0 ? o.huber_sigmas : 1.0);
   st.loss = o.huber_sigmas > 0.0 ? &huber : nullptr;
+  st.huber_a = o.huber_sigmas;
 
   std::vector<RawSegment> raws(s.windows.size());
   const std::vector<std::size_t> all = spread(s.windows.size(), s.windows.size());
@@ -216,7 +217,21 @@ SegmentFitResult fit_segments(const TimeBase& time, std::span<const double> cap_
 
   r.charging.phase = Phase::charging;
   r.discharging.phase = Phase::discharging;
-  if (o.joint) {
+  if (o.joint && o.threads > 1) {
+    // The two phases are independent problems: one a thread.
+    std::exception_ptr error;
+    {
+      std::jthread other([&] {
+        try {
+          r.discharging = fit_phase(Phase::discharging, s, raws, st);
+        } catch (...) {
+          error = std::current_exception();
+        }
+      });
+      r.charging = fit_phase(Phase::charging, s, raws, st);
+    }  // joins
+    if (error) std::rethrow_exception(error);
+  } else if (o.joint) {
     r.charging = fit_phase(Phase::charging, s, raws, st);
     r.discharging = fit_phase(Phase::discharging, s, raws, st);
   }

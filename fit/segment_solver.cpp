@@ -5,14 +5,17 @@
 #include <cmath>
 #include <deque>
 #include <memory>
+#include <optional>
 #include <utility>
 #include <vector>
 
 #include <ceres/ceres.h>
 #include <Eigen/Dense>
+#include <Eigen/Eigenvalues>
 
 #include "fit/exponential_segment.h"
 #include "fit/linearized_segment.h"
+#include "fit/segment_normal.h"
 
 namespace benchtau::detail {
 namespace {
@@ -77,6 +80,239 @@ double amplitude_at(std::span<const double> x, std::span<const double> y, double
   return den > 0.0 ? num / den : 0.0;
 }
 
+// The mean turnaround voltages f = g_t' theta + sum_k g_k A_k (theta = ln tau, Vinf) of a
+// joint fit depend on every amplitude. No residual block holds two amplitudes, so in
+// J'J = [B E; E' D] the amplitude block D is diagonal (d_k), and the block inverse reduces
+// their variance to
+//   Var f = (g_t - h)' C (g_t - h) + sum_k g_k^2 / d_k,   h = sum_k g_k e_k / d_k,
+// with C = cov(theta) and e_k, d_k read off each segment's own J'J (jtj[k]). Checked against
+// a dense inverse of the whole J'J in the tests.
+Estimate mean_turnaround(const SegmentSamples& s, std::span<const std::size_t> ids, double log_tau,
+                         double vinf, std::span<const double> amp, const Eigen::Matrix2d& c,
+                         std::span<const Eigen::Matrix3d> jtj, bool at_end) {
+  const std::size_t n = ids.size();
+  const double tau = std::exp(log_tau);
+  Eigen::Vector2d g_t(0.0, 1.0), h = Eigen::Vector2d::Zero();
+  double value = vinf, var_amp = 0.0;
+  const double inv_n = 1.0 / static_cast<double>(n);
+  for (std::size_t k = 0; k < n; ++k) {
+    const double len_s = s.windows[ids[k]].length_s();
+    const double e = at_end ? std::exp(-len_s / tau) : 1.0;
+    const double g = e * inv_n;
+    value += amp[k] * g;
+    if (at_end) g_t(0) += amp[k] * e * (len_s / tau) * inv_n;  // d/d ln(tau)
+    const double d = jtj[k](2, 2);
+    h += g / d * jtj[k].block<2, 1>(0, 2);
+    var_amp += g * g / d;
+  }
+  return estimate(value, (g_t - h).dot(c * (g_t - h)) + var_amp);
+}
+
+// The closed-form solvers below: Levenberg-Marquardt on the normal equations of
+// segment_normal.h, with Ceres's own defaults for the damping (1e-4 of J'J's diagonal to
+// start, the diagonal clamped to [1e-6, 1e32]) and tolerances as tight as solver_options'.
+// Either gives up (nullopt) on anything but a clean minimum: out of iterations, a point that
+// cannot be evaluated, a J'J far from full rank (reciprocal condition under 1e-10, a margin
+// over the 1e-14 at which ceres::Covariance refuses), or tau's error over the limit. Then
+// the Ceres problem decides, as it always did.
+constexpr int kMaxIterations = 50;
+constexpr double kInitialDamping = 1e-4;
+
+Eigen::Vector3d clamped_diagonal(const Eigen::Matrix3d& a) {
+  return a.diagonal().cwiseMax(1e-6).cwiseMin(1e32);
+}
+
+// Well enough conditioned that a covariance from it means what Ceres's would.
+template <int N>
+bool well_conditioned(const Eigen::Matrix<double, N, N>& a) {
+  if (!a.allFinite()) return false;
+  Eigen::SelfAdjointEigenSolver<Eigen::Matrix<double, N, N>> es(a, Eigen::EigenvaluesOnly);
+  const auto& ev = es.eigenvalues();
+  return es.info() == Eigen::Success && ev(0) > 1e-10 * ev(N - 1);
+}
+
+// The LM bookkeeping shared by both solvers: whether a step is worth taking and how the
+// damping moves (Nielsen's rule, as in Ceres).
+struct Damping {
+  double mu = kInitialDamping;
+  double nu = 2.0;
+  // Returns true when the step is accepted.
+  bool update(double actual, double predicted) {
+    const double rho = predicted > 0.0 ? actual / predicted : -1.0;
+    if (rho > 1e-3) {
+      mu *= std::max(1.0 / 3.0, 1.0 - std::pow(2.0 * rho - 1.0, 3));
+      nu = 2.0;
+      return true;
+    }
+    mu *= nu;
+    nu *= 2.0;
+    return false;
+  }
+};
+
+std::optional<RawSegment> closed_segment(std::span<const double> x, std::span<const double> y,
+                                         const SolveSettings& st, std::array<double, 3> p) {
+  const double inv_sigma = 1.0 / st.sigma_V;
+  const auto eval = [&](const Eigen::Vector3d& q) {
+    return segment_normal(x, y, q(0), q(1), q(2), inv_sigma, st.huber_a);
+  };
+  Eigen::Vector3d v(p[0], p[1], p[2]);
+  SegmentNormal now = eval(v);
+  if (!now.finite) return std::nullopt;
+  Damping damping;
+  int iterations = 1;
+  for (;; ++iterations) {
+    if (iterations > kMaxIterations || damping.mu > 1e32) return std::nullopt;
+    Eigen::Matrix3d a = now.jtj;
+    a.diagonal() += damping.mu * clamped_diagonal(now.jtj);
+    const Eigen::Vector3d step = a.ldlt().solve(-now.jtr);
+    if (!step.allFinite()) return std::nullopt;
+    // cost(v + step) ~ cost + 2 step'J'r + step'J'J step.
+    const double predicted = -(2.0 * step.dot(now.jtr) + step.dot(now.jtj * step));
+    if (step.norm() <= 1e-13 * (v.norm() + 1e-13) || predicted <= 1e-14 * now.cost) break;
+    const SegmentNormal next = eval(v + step);
+    if (!next.finite) {
+      damping.update(0.0, 1.0);  // refused: more damping, a shorter step
+      continue;
+    }
+    const double actual = now.cost - next.cost;
+    if (damping.update(actual, predicted)) {
+      v += step;
+      now = next;
+      if (actual <= 1e-14 * (now.cost + actual)) break;
+    }
+  }
+  RawSegment out;
+  out.params = {v(0), v(1), v(2)};
+  out.converged = true;
+  out.iterations = iterations;
+  out.rms_V = std::sqrt(now.raw_ss_V2 / static_cast<double>(x.size()));
+  out.status = FitStatus::ok;
+  if (!st.covariance) return out;
+  if (!well_conditioned<3>(now.jtj)) return std::nullopt;
+  out.covariance = now.jtj.inverse();
+  if (!(std::sqrt(out.covariance(0, 0)) <= st.max_relative_tau_error)) return std::nullopt;
+  return out;
+}
+
+// One phase: theta = (ln tau, Vinf) shared, one amplitude per segment. Each LM step
+// eliminates the amplitudes (J'J's amplitude block is diagonal), solves the 2 x 2 Schur
+// complement for theta, and back-substitutes; cov(theta) is that complement's inverse.
+std::optional<PhaseFit> closed_phase(Phase phase, const SegmentSamples& s,
+                                     std::span<const std::size_t> ids, double log_tau, double vinf,
+                                     const SolveSettings& st) {
+  const std::size_t n = ids.size();
+  const double inv_sigma = 1.0 / st.sigma_V;
+  std::vector<double> amp(n), trial_amp(n), step_amp(n);
+  std::vector<SegmentNormal> now(n), next(n);
+  std::size_t used = 0;
+  for (std::size_t k = 0; k < n; ++k) {
+    // Plain least squares for each amplitude with tau and Vinf held: -J'r / J'J at A = 0.
+    const SegmentWindow& w = s.windows[ids[k]];
+    const SegmentNormal at0 = segment_normal(s.x(w), s.y(w), log_tau, vinf, 0.0, inv_sigma, 0.0);
+    if (!at0.finite || !(at0.jtj(2, 2) > 0.0)) return std::nullopt;
+    amp[k] = -at0.jtr(2) / at0.jtj(2, 2);
+    used += w.used;
+  }
+  const auto eval = [&](double lt, double vi, const std::vector<double>& a,
+                        std::vector<SegmentNormal>& out) {
+    double cost = 0.0;
+    for (std::size_t k = 0; k < n; ++k) {
+      const SegmentWindow& w = s.windows[ids[k]];
+      out[k] = segment_normal(s.x(w), s.y(w), lt, vi, a[k], inv_sigma, st.huber_a);
+      if (!out[k].finite) return std::nan("");
+      cost += out[k].cost;
+    }
+    return cost;
+  };
+  double cost = eval(log_tau, vinf, amp, now);
+  if (!std::isfinite(cost)) return std::nullopt;
+  Damping damping;
+  int iterations = 1;
+  for (;; ++iterations) {
+    if (iterations > kMaxIterations || damping.mu > 1e32) return std::nullopt;
+    Eigen::Matrix2d b = Eigen::Matrix2d::Zero();
+    Eigen::Vector2d g = Eigen::Vector2d::Zero();
+    for (const SegmentNormal& m : now) {
+      b += m.jtj.topLeftCorner<2, 2>();
+      g += m.jtr.head<2>();
+    }
+    Eigen::Matrix2d schur = b;
+    schur.diagonal() += damping.mu * b.diagonal().cwiseMax(1e-6).cwiseMin(1e32);
+    Eigen::Vector2d rhs = -g;
+    for (const SegmentNormal& m : now) {
+      const double d = m.jtj(2, 2) * (1.0 + damping.mu);
+      const Eigen::Vector2d e = m.jtj.block<2, 1>(0, 2);
+      schur -= e * e.transpose() / d;
+      rhs += e * m.jtr(2) / d;
+    }
+    const Eigen::Vector2d step = schur.ldlt().solve(rhs);
+    if (!step.allFinite()) return std::nullopt;
+    double step2 = step.squaredNorm(), param2 = log_tau * log_tau + vinf * vinf;
+    double step_dot_g = step.dot(g), quad = step.dot(b * step);
+    for (std::size_t k = 0; k < n; ++k) {
+      const SegmentNormal& m = now[k];
+      const double d = m.jtj(2, 2) * (1.0 + damping.mu);
+      const Eigen::Vector2d e = m.jtj.block<2, 1>(0, 2);
+      step_amp[k] = (-m.jtr(2) - e.dot(step)) / d;
+      if (!std::isfinite(step_amp[k])) return std::nullopt;
+      step2 += step_amp[k] * step_amp[k];
+      param2 += amp[k] * amp[k];
+      step_dot_g += step_amp[k] * m.jtr(2);
+      quad += 2.0 * step_amp[k] * e.dot(step) + m.jtj(2, 2) * step_amp[k] * step_amp[k];
+    }
+    const double predicted = -(2.0 * step_dot_g + quad);
+    if (std::sqrt(step2) <= 1e-13 * (std::sqrt(param2) + 1e-13) || predicted <= 1e-14 * cost) break;
+    for (std::size_t k = 0; k < n; ++k) trial_amp[k] = amp[k] + step_amp[k];
+    const double trial = eval(log_tau + step(0), vinf + step(1), trial_amp, next);
+    if (!std::isfinite(trial)) {
+      damping.update(0.0, 1.0);
+      continue;
+    }
+    const double actual = cost - trial;
+    if (damping.update(actual, predicted)) {
+      log_tau += step(0);
+      vinf += step(1);
+      amp.swap(trial_amp);
+      now.swap(next);
+      cost = trial;
+      if (actual <= 1e-14 * (cost + actual)) break;
+    }
+  }
+
+  // cov(theta): the inverse of the undamped Schur complement at the minimum.
+  std::vector<Eigen::Matrix3d> jtj(n);
+  Eigen::Matrix2d schur = Eigen::Matrix2d::Zero();
+  double ss = 0.0;
+  for (std::size_t k = 0; k < n; ++k) {
+    jtj[k] = now[k].jtj;
+    const double d = jtj[k](2, 2);
+    if (!(d > 0.0)) return std::nullopt;
+    const Eigen::Vector2d e = jtj[k].block<2, 1>(0, 2);
+    schur += jtj[k].topLeftCorner<2, 2>() - e * e.transpose() / d;
+    ss += now[k].raw_ss_V2;
+  }
+  if (!well_conditioned<2>(schur)) return std::nullopt;
+  const Eigen::Matrix2d c = schur.inverse();
+  if (!(std::sqrt(c(0, 0)) <= st.max_relative_tau_error)) return std::nullopt;
+
+  PhaseFit f;
+  f.phase = phase;
+  f.segments.assign(ids.begin(), ids.end());
+  f.status = FitStatus::ok;
+  f.iterations = iterations;
+  f.used = used;
+  f.rms_V = std::sqrt(ss / static_cast<double>(used));
+  const double tau = std::exp(log_tau);
+  f.tau_s = {tau, tau * std::sqrt(c(0, 0))};
+  f.vinf_V = estimate(vinf, c(1, 1));
+  f.cov_log_tau_vinf = c(0, 1);
+  f.start_V = mean_turnaround(s, ids, log_tau, vinf, amp, c, jtj, false);
+  f.end_V = mean_turnaround(s, ids, log_tau, vinf, amp, c, jtj, true);
+  f.amp_V = std::move(amp);
+  return f;
+}
+
 }  // namespace
 
 std::array<double, 3> initial_guess(std::span<const double> x, std::span<const double> y) {
@@ -134,6 +370,9 @@ RawSegment solve_segment(std::span<const double> x, std::span<const double> y,
     }
   }
   out.params = start ? *start : initial_guess(x, y);
+  if (st.closed_form) {
+    if (std::optional<RawSegment> fast = closed_segment(x, y, st, out.params)) return *fast;
+  }
 
   ExponentialSegmentCost cost(x, y, st.sigma_V, st.loss);  // declared first: outlives problem
   ceres::Problem problem(problem_options());
@@ -205,6 +444,10 @@ PhaseFit solve_phase(Phase phase, const SegmentSamples& s, std::span<const std::
   f.segments.assign(ids.begin(), ids.end());
   const std::size_t n = ids.size();
   if (n == 0 || !std::isfinite(log_tau0) || !std::isfinite(vinf0_V)) return f;
+  if (st.closed_form) {
+    if (std::optional<PhaseFit> fast = closed_phase(phase, s, ids, log_tau0, vinf0_V, st))
+      return std::move(*fast);
+  }
 
   double log_tau = log_tau0, vinf = vinf0_V;
   bool solved = false;
@@ -285,32 +528,13 @@ PhaseFit solve_phase(Phase phase, const SegmentSamples& s, std::span<const std::
   const double tau = std::exp(log_tau);
   f.tau_s = {tau, tau * std::sqrt(c(0, 0))};
   f.vinf_V = estimate(vinf, c(1, 1));
+  f.cov_log_tau_vinf = c(0, 1);
 
-  // The mean turnaround voltages f = g_t' theta + sum_k g_k A_k (theta = ln tau, Vinf) depend
-  // on every amplitude. No residual block holds two amplitudes, so in J'J = [B E; E' D] the
-  // amplitude block D is diagonal (d_k), and the block inverse reduces their variance to
-  //   Var f = (g_t - h)' C (g_t - h) + sum_k g_k^2 / d_k,   h = sum_k g_k e_k / d_k,
-  // with C = cov(theta) from ceres::Covariance above and e_k, d_k read off each segment's
-  // R'R. Checked against a dense inverse of the whole J'J in the tests.
-  auto mean_turnaround = [&](bool at_end) {
-    Eigen::Vector2d g_t(0.0, 1.0), h = Eigen::Vector2d::Zero();
-    double value = vinf, var_amp = 0.0;
-    const double inv_n = 1.0 / static_cast<double>(n);
-    for (std::size_t k = 0; k < n; ++k) {
-      const double len_s = s.windows[ids[k]].length_s();
-      const double e = at_end ? std::exp(-len_s / tau) : 1.0;
-      const double g = e * inv_n;
-      value += amp[k] * g;
-      if (at_end) g_t(0) += amp[k] * e * (len_s / tau) * inv_n;  // d/d ln(tau)
-      const Eigen::Matrix3d jtj = reduced[k].factor().transpose() * reduced[k].factor();
-      const double d = jtj(2, 2);
-      h += g / d * jtj.block<2, 1>(0, 2);
-      var_amp += g * g / d;
-    }
-    return estimate(value, (g_t - h).dot(c * (g_t - h)) + var_amp);
-  };
-  f.start_V = mean_turnaround(false);
-  f.end_V = mean_turnaround(true);
+  std::vector<Eigen::Matrix3d> jtj(n);
+  for (std::size_t k = 0; k < n; ++k)
+    jtj[k] = reduced[k].factor().transpose() * reduced[k].factor();
+  f.start_V = mean_turnaround(s, ids, log_tau, vinf, amp, c, jtj, false);
+  f.end_V = mean_turnaround(s, ids, log_tau, vinf, amp, c, jtj, true);
   return f;
 }
 

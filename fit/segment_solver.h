@@ -20,6 +20,11 @@ namespace benchtau::detail {
 struct SolveSettings {
   double sigma_V = 1.0;
   const ceres::LossFunction* loss = nullptr;
+  // The threshold a of loss when loss is ceres::HuberLoss(a) (0 with no loss): the fits then
+  // run in closed form (segment_normal.h), with Ceres as the fallback for any fit that does not
+  // end in a clean, well-conditioned minimum. A loss of another kind: set closed_form false.
+  double huber_a = 0.0;
+  bool closed_form = true;
   std::size_t min_samples = 6;
   double flat_sigmas = 5.0;
   double max_relative_tau_error = 0.2;
