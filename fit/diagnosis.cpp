@@ -217,6 +217,7 @@ Diagnosis diagnose(const Design& design, std::span<const BoardCapture> captures,
 
   const detail::DiagnosisContext ctx{design, problem, scored, cap_captured, ctl_captured};
   d.parts = detail::fitted_parts(ctx);
+  d.figures = detail::fitted_figures(ctx);
   d.suspects = detail::describe_suspects(ctx);
   for (const Scored& s : scored) {
     if (s.explanation.kind == ExplanationKind::all_in_tolerance)

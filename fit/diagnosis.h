@@ -101,12 +101,15 @@ struct Replacement {
 
 struct Diagnosis {
   Verdict verdict = Verdict::inconclusive;
-  std::string reason;                // one sentence behind the verdict
-  std::string mode;                  // what was captured: "both-nodes", "output-only", "cap-only"
-  std::vector<FittedPart> parts;     // the design's parts, under the explanation ranked first
-  double healthy_probability = 0.0;  // of "all parts in tolerance"
-  std::vector<Suspect> suspects;     // every other explanation, most probable first
-  std::vector<std::string> fixed;    // what the captures fix, in plain words
+  std::string reason;             // one sentence behind the verdict
+  std::string mode;               // what was captured: "both-nodes", "output-only", "cap-only"
+  std::vector<FittedPart> parts;  // the design's parts, under the explanation ranked first
+  // The supply and the timer's own figures as fitted there (unit, fitted, sigma, data_share;
+  // nominal is the prior's centre, tolerance NaN; status in-spec within two prior sigmas).
+  std::vector<FittedPart> figures;
+  double healthy_probability = 0.0;      // of "all parts in tolerance"
+  std::vector<Suspect> suspects;         // every other explanation, most probable first
+  std::vector<std::string> fixed;        // what the captures fix, in plain words
   std::vector<std::string> unseparated;  // what they cannot tell apart
   std::vector<std::string> next;         // what to measure next
   std::optional<Replacement> replacement;

@@ -43,6 +43,8 @@ std::vector<std::string> suggest_measurements(const DiagnosisContext& c);
 
 // The fitted values of the design's parts under the best explanation.
 std::vector<FittedPart> fitted_parts(const DiagnosisContext& c);
+// The supply and the timer's figures, likewise.
+std::vector<FittedPart> fitted_figures(const DiagnosisContext& c);
 
 // A preferred value for the leading suspect's part, when it is one.
 std::optional<Replacement> suggest_replacement(const DiagnosisContext& c);

@@ -1,4 +1,5 @@
 // benchtau: the design's parts as fitted under the leading explanation, and their status.
+#include <algorithm>
 #include <cmath>
 
 #include "fit/diagnosis_detail.h"
@@ -44,6 +45,31 @@ std::vector<FittedPart> fitted_parts(const DiagnosisContext& c) {
     parts.push_back(std::move(p));
   }
   return parts;
+}
+
+std::vector<FittedPart> fitted_figures(const DiagnosisContext& c) {
+  std::vector<FittedPart> out;
+  const Scored& lead = c.scored.front();
+  for (std::size_t i = 0; i < c.problem.params.size(); ++i) {
+    const FitParameter& f = c.problem.params[i];
+    if (f.part >= 0) continue;
+    FittedPart p;
+    p.ref = f.id;
+    p.unit = f.unit;
+    p.nominal = f.nominal;
+    const Eigen::Index k = static_cast<Eigen::Index>(i);
+    const double var = lead.fit.cov_x(k, k);
+    p.fitted = f.to_value(lead.fit.x[i]);
+    p.sigma = f.transform == Transform::log ? p.fitted * std::sqrt(var) : std::sqrt(var);
+    p.deviation = p.nominal != 0.0 ? p.fitted / p.nominal - 1.0 : NAN;
+    const double w = lead.explanation.spec.priors[i].sigma;
+    p.data_share = std::clamp(1.0 - var / (w * w), 0.0, 1.0);
+    p.status = std::fabs(lead.fit.x[i] - f.prior.mean) <= 2.0 * f.prior.sigma
+                   ? PartStatus::in_spec
+                   : PartStatus::undetermined;
+    out.push_back(std::move(p));
+  }
+  return out;
 }
 
 }  // namespace benchtau::detail

@@ -34,6 +34,16 @@ TEST_CASE("a healthy board passes", "[diagnosis]") {
   CHECK(d.verdict == Verdict::pass);
   CHECK(d.healthy_probability > 0.5);
   for (const FittedPart& p : d.parts) CHECK(p.status == PartStatus::in_spec);
+  // The output's levels come from the output channel: the board was simulated with the
+  // family's typical 1.7 V drop, and the fit finds it from the data, not the prior.
+  bool found = false;
+  for (const FittedPart& f : d.figures) {
+    if (f.ref != "output high drop") continue;
+    found = true;
+    CHECK(f.fitted == Approx(1.7).margin(0.05));
+    CHECK(f.data_share > 0.9);
+  }
+  CHECK(found);
 }
 
 TEST_CASE("lost capacitance is named, with its value", "[diagnosis]") {
