@@ -10,6 +10,7 @@ enum Exit : int {
   kMeasured = 0,      // the job was done
   kNothingFound = 1,  // the input read fine but held nothing to measure (see the findings)
   kInputError = 2,    // a file or an option could not be used
+  kInconclusive = 3,  // fit: the captures read fine but cannot settle the verdict
 };
 
 // Each adds its subcommand; when it runs, it stores its exit code in exit_code.
@@ -20,6 +21,7 @@ void add_simulate_command(CLI::App& app, int& exit_code);
 void add_ports_command(CLI::App& app, int& exit_code);
 void add_watch_command(CLI::App& app, int& exit_code);
 void add_capture_command(CLI::App& app, int& exit_code);
+void add_fit_command(CLI::App& app, int& exit_code);
 
 // The bench cautions, shared by `benchtau safety` and the help text.
 extern const char* const kSafetyText;

@@ -22,6 +22,7 @@ int main(int argc, char** argv) {
   benchtau::cli::add_ports_command(app, exit_code);
   benchtau::cli::add_watch_command(app, exit_code);
   benchtau::cli::add_capture_command(app, exit_code);
+  benchtau::cli::add_fit_command(app, exit_code);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -90,11 +90,14 @@ std::string measure_table(const MeasureReport& r, bool per_cycle) {
                          format_eng(cy.cap_min_V, "V"), cy.startup ? "  start-up" : "");
     }
   }
-  if (!m.findings.empty()) {
-    out += "\nfindings\n";
-    for (const Finding& f : m.findings) {
-      out += fmt::format("  {:<8} {}: {}\n", severity_name(f.severity), f.code, f.message);
-    }
+  if (!m.findings.empty()) out += "\nfindings\n" + finding_lines(m.findings);
+  return out;
+}
+
+std::string finding_lines(const Findings& findings) {
+  std::string out;
+  for (const Finding& f : findings) {
+    out += fmt::format("  {:<8} {}: {}\n", severity_name(f.severity), f.code, f.message);
   }
   return out;
 }
@@ -120,10 +123,44 @@ void node_json(JsonWriter& j, std::string_view name, const Capture& c,
 
 }  // namespace
 
+void summary_json(JsonWriter& j, const Measurement& m) {
+  const Summary& s = m.summary;
+  j.begin_object();
+  j.key("cycles").value(s.cycles);
+  stat_json(j, "period_s", s.period_s);
+  stat_json(j, "high_s", s.high_s);
+  stat_json(j, "low_s", s.low_s);
+  stat_json(j, "duty", s.duty);
+  stat_json(j, "cap_max_V", s.cap_max_V);
+  stat_json(j, "cap_min_V", s.cap_min_V);
+  stat_json(j, "ctl_V", s.ctl_V);
+  j.key("frequency_Hz").value(s.frequency_Hz);
+  j.key("jitter_c2c_s").value(s.jitter_c2c_s);
+  j.key("drift").begin_object();
+  j.key("known").value(s.drift.known);
+  j.key("ppm_per_s").value(s.drift.known ? s.drift.ppm_per_s : NAN);
+  j.key("sigma_ppm_per_s").value(s.drift.known ? s.drift.sigma_ppm_per_s : NAN);
+  j.end_object();
+  j.key("out_low_V").value(s.out_low_V);
+  j.key("out_high_V").value(s.out_high_V);
+  j.key("min_samples_per_segment").value(m.min_samples_per_segment);
+  j.end_object();
+}
+
+void findings_json(JsonWriter& j, const Findings& findings) {
+  j.begin_array();
+  for (const Finding& f : findings) {
+    j.begin_object();
+    j.key("code").value(f.code).key("severity").value(severity_name(f.severity));
+    j.key("message").value(f.message);
+    j.end_object();
+  }
+  j.end_array();
+}
+
 std::string measure_json(const MeasureReport& r) {
   const Capture& c = r.capture;
   const Measurement& m = r.measurement;
-  const Summary& s = m.summary;
   JsonWriter j;
   j.begin_object();
   j.key("schema").value("benchtau-measure-1");
@@ -153,26 +190,8 @@ std::string measure_json(const MeasureReport& r) {
   } else {
     j.value(m.edge_node);
   }
-  j.key("summary").begin_object();
-  j.key("cycles").value(s.cycles);
-  stat_json(j, "period_s", s.period_s);
-  stat_json(j, "high_s", s.high_s);
-  stat_json(j, "low_s", s.low_s);
-  stat_json(j, "duty", s.duty);
-  stat_json(j, "cap_max_V", s.cap_max_V);
-  stat_json(j, "cap_min_V", s.cap_min_V);
-  stat_json(j, "ctl_V", s.ctl_V);
-  j.key("frequency_Hz").value(s.frequency_Hz);
-  j.key("jitter_c2c_s").value(s.jitter_c2c_s);
-  j.key("drift").begin_object();
-  j.key("known").value(s.drift.known);
-  j.key("ppm_per_s").value(s.drift.known ? s.drift.ppm_per_s : NAN);
-  j.key("sigma_ppm_per_s").value(s.drift.known ? s.drift.sigma_ppm_per_s : NAN);
-  j.end_object();
-  j.key("out_low_V").value(s.out_low_V);
-  j.key("out_high_V").value(s.out_high_V);
-  j.key("min_samples_per_segment").value(m.min_samples_per_segment);
-  j.end_object();
+  j.key("summary");
+  summary_json(j, m);
   j.key("cycles").begin_array();
   for (const Cycle& cy : m.cycles) {
     j.begin_object();
@@ -184,14 +203,8 @@ std::string measure_json(const MeasureReport& r) {
     j.end_object();
   }
   j.end_array();
-  j.key("findings").begin_array();
-  for (const Finding& f : m.findings) {
-    j.begin_object();
-    j.key("code").value(f.code).key("severity").value(severity_name(f.severity));
-    j.key("message").value(f.message);
-    j.end_object();
-  }
-  j.end_array();
+  j.key("findings");
+  findings_json(j, m.findings);
   j.key("notes").begin_array();
   for (const std::string& n : r.notes) j.value(n);
   j.end_array();
