@@ -143,8 +143,11 @@ TEST_CASE("predict: a design that cannot oscillate says why, with no timing numb
       "d['monte_carlo'], [f['code'] for f in d['findings']])";
   const Run j = run(exe() + " predict --json --design '" + d.string() +
                     "' | /usr/bin/python3 -c \"" + py + "\"");
+  // It stops by 14 mV, inside the output low level's 0.1 V spread (the
+  // control pin follows that level): another timer may run it.
   CHECK(j.out ==
-        "False will not oscillate: while discharging None None None None ['no_oscillation']\n");
+        "False will not oscillate: while discharging None None None None ['marginal', "
+        "'no_oscillation']\n");
 }
 
 TEST_CASE("predict: a missing design file or a bad option is an input error, exit 2") {
