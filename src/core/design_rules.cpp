@@ -316,7 +316,7 @@ Findings check_design(const Design& design, const Circuit& circuit,
   // The other side of the same edge: a circuit that stops by less than the spread.
   if (const StopMargin stop = stop_margin(circuit, prediction); stop.marginal) {
     add(out, "marginal", Severity::warning,
-        fmt::format("marginal: it stops because {} by {}, within the part-to-part spread of the "
+        fmt::format("it stops because {} by {}, within the part-to-part spread of the "
                     "{}; the same design may run on another timer",
                     stop.what, V(stop.short_V), stop.deciding_figure));
   }

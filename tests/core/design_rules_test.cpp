@@ -209,7 +209,7 @@ TEST_CASE("a circuit that stops by less than the spread may run on another timer
   CHECK(severity(f, "no_oscillation") == Severity::problem);
   CHECK(severity(f, "marginal") == Severity::warning);
   CHECK(message(f, "marginal") ==
-        "marginal: it stops because the charging target falls short of the upper threshold by "
+        "it stops because the charging target falls short of the upper threshold by "
         "29.3 mV, within the part-to-part spread of the output high level; the same design may "
         "run on another timer");
   // Driven to 12 V, far above anything the 9 V supply can charge to: stopped for good.
