@@ -41,7 +41,8 @@ std::string error_of(std::vector<std::string> texts) {
 
 }  // namespace
 
-TEST_CASE("--change takes a supply and a resistor across a part, for capture 2 or later") {
+TEST_CASE(
+    "fit option --change: takes a supply and a resistor across a part, for capture 2 or later") {
   const std::vector<std::string> texts{"2:supply=12", "3:R2||100k", "3:supply=4.5V"};
   const std::vector<BoardChange> c = parse_changes(texts, 3, design());
   REQUIRE(c.size() == 3);
@@ -59,14 +60,14 @@ TEST_CASE("--change takes a supply and a resistor across a part, for capture 2 o
   CHECK(change_text(c[2]) == "taken at 4.50 V; 100 kohm added across R2");
 }
 
-TEST_CASE("--change reads engineering notation for the added resistor") {
+TEST_CASE("fit option --change: reads engineering notation for the added resistor") {
   const std::vector<std::string> texts{"2:R1||4k7"};
   const std::vector<BoardChange> c = parse_changes(texts, 2, design());
   CHECK(c[1].across_ref == "R1");
   CHECK(c[1].across_ohm == Approx(4700.0).epsilon(1e-12));
 }
 
-TEST_CASE("--change errors name the option, the text and what was expected") {
+TEST_CASE("fit option --change: errors name the option, the text and what was expected") {
   CHECK(error_of({"supply=12"}) ==
         "--change: \"supply=12\": expected CAPTURE:CHANGE, such as 2:supply=12 (capture 2 taken "
         "at 12 V) or 2:R2||100k (capture 2 with 100k added across R2)");
@@ -97,7 +98,7 @@ TEST_CASE("--change errors name the option, the text and what was expected") {
         "--change: \"2:R2||10k\": capture 2 already has a resistor added across R1");
 }
 
-TEST_CASE("--change with one capture says so in the singular") {
+TEST_CASE("fit option --change: with one capture says so in the singular") {
   const std::vector<std::string> texts{"2:supply=12"};
   try {
     parse_changes(texts, 1, design());
