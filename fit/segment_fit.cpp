@@ -5,11 +5,13 @@
 #include <cmath>
 #include <exception>
 #include <limits>
+#include <memory>
 #include <stdexcept>
 #include <thread>
 #include <vector>
 
 #include <ceres/loss_function.h>
+#include <Eigen/Dense>
 
 #include "fit/exponential_segment.h"
 #include "fit/noise_scale.h"
@@ -99,6 +101,45 @@ double median(std::vector<double> v) {
   return *mid;
 }
 
+// For the closed-form joint solver, a start within second order of its minimum (so that it
+// needs two or three passes over the samples rather than six): the segments fitted well on
+// their own, combined by what each says about (ln tau, Vinf) (the inverse of its 2 x 2
+// marginal covariance, the usual inverse-variance weighting), and each one's amplitude moved
+// to that point along its regression on (ln tau, Vinf) in its own covariance. Null when no
+// segment was fitted well.
+std::unique_ptr<detail::PhaseStart> closed_start(const std::vector<RawSegment>& raws,
+                                                 std::span<const std::size_t> ids) {
+  Eigen::Matrix2d info = Eigen::Matrix2d::Zero();
+  Eigen::Vector2d weighted = Eigen::Vector2d::Zero();
+  std::size_t ok = 0;
+  for (std::size_t k : ids) {
+    const RawSegment& raw = raws[k];
+    if (raw.status != FitStatus::ok) continue;
+    const Eigen::Matrix2d w = raw.covariance.topLeftCorner<2, 2>().inverse();
+    if (!w.allFinite()) continue;
+    info += w;
+    weighted += w * Eigen::Vector2d(raw.params[0], raw.params[1]);
+    ++ok;
+  }
+  if (ok == 0) return nullptr;
+  const Eigen::Vector2d theta = info.ldlt().solve(weighted);
+  if (!theta.allFinite()) return nullptr;
+  auto start = std::make_unique<detail::PhaseStart>();
+  start->log_tau = theta(0);
+  start->vinf_V = theta(1);
+  start->amp_V.assign(ids.size(), std::nan(""));
+  for (std::size_t j = 0; j < ids.size(); ++j) {
+    const RawSegment& raw = raws[ids[j]];
+    if (raw.status != FitStatus::ok) continue;
+    const Eigen::Matrix3d& c = raw.covariance;
+    const Eigen::Vector2d d = theta - Eigen::Vector2d(raw.params[0], raw.params[1]);
+    const Eigen::RowVector2d slope =
+        c.block<1, 2>(2, 0) * c.topLeftCorner<2, 2>().inverse();  // E[A | theta]
+    start->amp_V[j] = raw.params[2] + slope.dot(d);
+  }
+  return start;
+}
+
 PhaseFit fit_phase(Phase phase, const SegmentSamples& s, const std::vector<RawSegment>& raws,
                    const SolveSettings& st) {
   // Every segment with enough samples that is not flat takes part, identifiable on its own or
@@ -120,7 +161,8 @@ PhaseFit fit_phase(Phase phase, const SegmentSamples& s, const std::vector<RawSe
     log_taus = std::move(other_log_taus);
     vinfs = std::move(other_vinfs);
   }
-  return detail::solve_phase(phase, s, ids, median(log_taus), median(vinfs), st);
+  return detail::solve_phase(phase, s, ids, median(log_taus), median(vinfs), st,
+                             closed_start(raws, ids).get());
 }
 
 void check(const SegmentFitOptions& o) {

@@ -24,6 +24,10 @@ namespace benchtau::detail {
 
 struct SegmentNormal {
   Eigen::Matrix3d jtj = Eigen::Matrix3d::Zero();
+  // The Gauss-Newton Hessian of the Huber cost itself: samples on the loss's linear part have
+  // no curvature and drop out. Steps taken with it converge quadratically, where J'J (which
+  // keeps them, scaled) converges only linearly, at a rate set by their share.
+  Eigen::Matrix3d hessian = Eigen::Matrix3d::Zero();
   Eigen::Vector3d jtr = Eigen::Vector3d::Zero();
   double cost = 0.0;       // sum of the (loss-shaped) residuals squared, in sigmas^2
   double raw_ss_V2 = 0.0;  // sum of the plain residuals squared, in volts^2
@@ -56,6 +60,7 @@ inline SegmentNormal segment_normal(std::span<const double> x, std::span<const d
   double s00[kLanes] = {}, s01[kLanes] = {}, s02[kLanes] = {}, s12[kLanes] = {}, s22[kLanes] = {},
          g0[kLanes] = {}, g1[kLanes] = {}, g2[kLanes] = {}, rr[kLanes] = {};
   double f00 = 0, f01 = 0, f02 = 0, f11 = 0, f12 = 0, f22 = 0, h0 = 0, h1 = 0, h2 = 0, fcost = 0;
+  double n00 = 0, n01 = 0, n02 = 0, n11 = 0, n12 = 0, n22 = 0;
   double e[kBlock], r[kBlock], u0[kBlock];
   for (std::size_t start = 0; start < n; start += kBlock) {
     const std::size_t m = std::min(kBlock, n - start);
@@ -108,6 +113,12 @@ inline SegmentNormal segment_normal(std::span<const double> x, std::span<const d
         f11 += w2m1;
         f12 += w2m1 * ej;
         f22 += w2m1 * ej * ej;
+        n00 += p * p;
+        n01 += p;
+        n02 += p * ej;
+        n11 += 1.0;
+        n12 += ej;
+        n22 += ej * ej;
         h0 += dg * p;
         h1 += dg;
         h2 += dg * ej;
@@ -117,15 +128,20 @@ inline SegmentNormal segment_normal(std::span<const double> x, std::span<const d
   }
   const auto sum = [](const double(&v)[kLanes]) { return (v[0] + v[1]) + (v[2] + v[3]); };
   const double is2 = inv_sigma * inv_sigma;
-  const double a00 = sum(s00) + f00, a01 = sum(s01) + f01, a02 = sum(s02) + f02;
-  const double a11 = static_cast<double>(n) + f11, a12 = sum(s12) + f12, a22 = sum(s22) + f22;
-  out.jtj << a00, a01, a02, a01, a11, a12, a02, a12, a22;
+  const double c00 = sum(s00), c01 = sum(s01), c02 = sum(s02), c11 = static_cast<double>(n),
+               c12 = sum(s12), c22 = sum(s22);
+  out.jtj << c00 + f00, c01 + f01, c02 + f02, c01 + f01, c11 + f11, c12 + f12, c02 + f02, c12 + f12,
+      c22 + f22;
   out.jtj *= is2;
+  out.hessian << c00 - n00, c01 - n01, c02 - n02, c01 - n01, c11 - n11, c12 - n12, c02 - n02,
+      c12 - n12, c22 - n22;
+  out.hessian *= is2;
   out.jtr << (sum(g0) + h0) * inv_sigma, (sum(g1) + h1) * inv_sigma, (sum(g2) + h2) * inv_sigma;
   const double plain = sum(rr);
   out.cost = plain + fcost;
   out.raw_ss_V2 = plain / is2;
-  out.finite = std::isfinite(out.cost) && out.jtj.allFinite() && out.jtr.allFinite();
+  out.finite = std::isfinite(out.cost) && out.jtj.allFinite() && out.hessian.allFinite() &&
+               out.jtr.allFinite();
   return out;
 }
 

@@ -165,12 +165,12 @@ std::optional<RawSegment> closed_segment(std::span<const double> x, std::span<co
   int iterations = 1;
   for (;; ++iterations) {
     if (iterations > kMaxIterations || damping.mu > 1e32) return std::nullopt;
-    Eigen::Matrix3d a = now.jtj;
-    a.diagonal() += damping.mu * clamped_diagonal(now.jtj);
+    Eigen::Matrix3d a = now.hessian;
+    a.diagonal() += damping.mu * clamped_diagonal(now.hessian);
     const Eigen::Vector3d step = a.ldlt().solve(-now.jtr);
     if (!step.allFinite()) return std::nullopt;
     // cost(v + step) ~ cost + 2 step'J'r + step'J'J step.
-    const double predicted = -(2.0 * step.dot(now.jtr) + step.dot(now.jtj * step));
+    const double predicted = -(2.0 * step.dot(now.jtr) + step.dot(now.hessian * step));
     if (step.norm() <= 1e-13 * (v.norm() + 1e-13) || predicted <= 1e-14 * now.cost) break;
     const SegmentNormal next = eval(v + step);
     if (!next.finite) {
@@ -202,7 +202,7 @@ std::optional<RawSegment> closed_segment(std::span<const double> x, std::span<co
 // complement for theta, and back-substitutes; cov(theta) is that complement's inverse.
 std::optional<PhaseFit> closed_phase(Phase phase, const SegmentSamples& s,
                                      std::span<const std::size_t> ids, double log_tau, double vinf,
-                                     const SolveSettings& st) {
+                                     const SolveSettings& st, std::span<const double> amp0) {
   const std::size_t n = ids.size();
   const double inv_sigma = 1.0 / st.sigma_V;
   std::vector<double> amp(n), trial_amp(n), step_amp(n);
@@ -211,10 +211,14 @@ std::optional<PhaseFit> closed_phase(Phase phase, const SegmentSamples& s,
   for (std::size_t k = 0; k < n; ++k) {
     // Plain least squares for each amplitude with tau and Vinf held: -J'r / J'J at A = 0.
     const SegmentWindow& w = s.windows[ids[k]];
+    used += w.used;
+    if (k < amp0.size() && std::isfinite(amp0[k])) {
+      amp[k] = amp0[k];
+      continue;
+    }
     const SegmentNormal at0 = segment_normal(s.x(w), s.y(w), log_tau, vinf, 0.0, inv_sigma, 0.0);
     if (!at0.finite || !(at0.jtj(2, 2) > 0.0)) return std::nullopt;
     amp[k] = -at0.jtr(2) / at0.jtj(2, 2);
-    used += w.used;
   }
   const auto eval = [&](double lt, double vi, const std::vector<double>& a,
                         std::vector<SegmentNormal>& out) {
@@ -236,15 +240,15 @@ std::optional<PhaseFit> closed_phase(Phase phase, const SegmentSamples& s,
     Eigen::Matrix2d b = Eigen::Matrix2d::Zero();
     Eigen::Vector2d g = Eigen::Vector2d::Zero();
     for (const SegmentNormal& m : now) {
-      b += m.jtj.topLeftCorner<2, 2>();
+      b += m.hessian.topLeftCorner<2, 2>();
       g += m.jtr.head<2>();
     }
     Eigen::Matrix2d schur = b;
     schur.diagonal() += damping.mu * b.diagonal().cwiseMax(1e-6).cwiseMin(1e32);
     Eigen::Vector2d rhs = -g;
     for (const SegmentNormal& m : now) {
-      const double d = m.jtj(2, 2) * (1.0 + damping.mu);
-      const Eigen::Vector2d e = m.jtj.block<2, 1>(0, 2);
+      const double d = m.hessian(2, 2) * (1.0 + damping.mu);
+      const Eigen::Vector2d e = m.hessian.block<2, 1>(0, 2);
       schur -= e * e.transpose() / d;
       rhs += e * m.jtr(2) / d;
     }
@@ -254,14 +258,14 @@ std::optional<PhaseFit> closed_phase(Phase phase, const SegmentSamples& s,
     double step_dot_g = step.dot(g), quad = step.dot(b * step);
     for (std::size_t k = 0; k < n; ++k) {
       const SegmentNormal& m = now[k];
-      const double d = m.jtj(2, 2) * (1.0 + damping.mu);
-      const Eigen::Vector2d e = m.jtj.block<2, 1>(0, 2);
+      const double d = m.hessian(2, 2) * (1.0 + damping.mu);
+      const Eigen::Vector2d e = m.hessian.block<2, 1>(0, 2);
       step_amp[k] = (-m.jtr(2) - e.dot(step)) / d;
       if (!std::isfinite(step_amp[k])) return std::nullopt;
       step2 += step_amp[k] * step_amp[k];
       param2 += amp[k] * amp[k];
       step_dot_g += step_amp[k] * m.jtr(2);
-      quad += 2.0 * step_amp[k] * e.dot(step) + m.jtj(2, 2) * step_amp[k] * step_amp[k];
+      quad += 2.0 * step_amp[k] * e.dot(step) + m.hessian(2, 2) * step_amp[k] * step_amp[k];
     }
     const double predicted = -(2.0 * step_dot_g + quad);
     if (std::sqrt(step2) <= 1e-13 * (std::sqrt(param2) + 1e-13) || predicted <= 1e-14 * cost) break;
@@ -435,15 +439,21 @@ SegmentFit report_segment(const SegmentWindow& window, const RawSegment& raw) {
 }
 
 PhaseFit solve_phase(Phase phase, const SegmentSamples& s, std::span<const std::size_t> ids,
-                     double log_tau0, double vinf0_V, const SolveSettings& st) {
+                     double log_tau0, double vinf0_V, const SolveSettings& st,
+                     const PhaseStart* closed_start) {
   PhaseFit f;
   f.phase = phase;
   f.segments.assign(ids.begin(), ids.end());
   const std::size_t n = ids.size();
   if (n == 0 || !std::isfinite(log_tau0) || !std::isfinite(vinf0_V)) return f;
   if (st.closed_form) {
-    if (std::optional<PhaseFit> fast = closed_phase(phase, s, ids, log_tau0, vinf0_V, st))
-      return std::move(*fast);
+    const bool given = closed_start != nullptr && std::isfinite(closed_start->log_tau) &&
+                       std::isfinite(closed_start->vinf_V);
+    const std::optional<PhaseFit> fast =
+        given ? closed_phase(phase, s, ids, closed_start->log_tau, closed_start->vinf_V, st,
+                             closed_start->amp_V)
+              : closed_phase(phase, s, ids, log_tau0, vinf0_V, st, {});
+    if (fast) return std::move(*fast);
   }
 
   double log_tau = log_tau0, vinf = vinf0_V;

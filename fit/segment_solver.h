@@ -8,6 +8,7 @@
 #include <array>
 #include <cstddef>
 #include <span>
+#include <vector>
 
 #include <ceres/loss_function.h>
 #include <Eigen/Core>
@@ -56,9 +57,18 @@ RawSegment solve_segment(std::span<const double> x_s, std::span<const double> y_
 // standard errors by the delta method from the 3 x 3 covariance.
 SegmentFit report_segment(const SegmentWindow& window, const RawSegment& raw);
 
-// All the given windows of one phase at once, sharing ln(tau) and Vinf, from the given start.
-// ids index samples.windows.
+// A start for the closed-form joint solver, nearer its minimum than the medians: amp_V holds
+// one amplitude per window fitted (NaN where none is known).
+struct PhaseStart {
+  double log_tau = 0.0;
+  double vinf_V = 0.0;
+  std::vector<double> amp_V;
+};
+
+// All the given windows of one phase at once, sharing ln(tau) and Vinf, from the given start
+// (the closed-form solver from closed_start instead, when given). ids index samples.windows.
 PhaseFit solve_phase(Phase phase, const SegmentSamples& samples, std::span<const std::size_t> ids,
-                     double log_tau0, double vinf0_V, const SolveSettings& settings);
+                     double log_tau0, double vinf0_V, const SolveSettings& settings,
+                     const PhaseStart* closed_start = nullptr);
 
 }  // namespace benchtau::detail
