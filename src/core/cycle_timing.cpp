@@ -38,12 +38,13 @@ struct Sum {
 struct Phase {
   double target_V = 0.0;
   double r_ohm = kOpen;
+  double g_S = 0.0;
 };
 
 Phase thevenin(const Sum& n) {
   if (!(n.g > 0.0)) return {};
   const double r = 1.0 / n.g;
-  return {n.i * r, r};
+  return {n.i * r, r, n.g};
 }
 
 bool present(double ohm) { return ohm > 0.0 && ohm < kOpen; }
@@ -201,23 +202,30 @@ CycleTiming cycle_timing(const Circuit& c) {
 
   // Each phase switches a propagation delay after its threshold crossing (as
   // in the model); a monostable's pulse starts from the discharged floor.
+  // tpd / tau is tpd g / C, and the two logarithms' ratios share one
+  // division: divisions set the pace here.
   const double tpd = f.propagation_delay_s;
   const double th = hs.r_ohm * v.cap_F, tl = ls.r_ohm * v.cap_F;
+  const double tpd_per_F = tpd / v.cap_F;
   const double start_V =
-      mono ? ls.target_V : ls.target_V + (lower_V - ls.target_V) * exp_minus(tpd / tl);
-  const double peak_V = hs.target_V + (upper_V - hs.target_V) * exp_minus(tpd / th);
+      mono ? ls.target_V : ls.target_V + (lower_V - ls.target_V) * exp_minus(tpd_per_F * ls.g_S);
+  const double peak_V = hs.target_V + (upper_V - hs.target_V) * exp_minus(tpd_per_F * hs.g_S);
   t.oscillates = true;
-  t.high_s = th * std::log((hs.target_V - start_V) / (hs.target_V - upper_V)) + tpd;
   t.cap_max_V = peak_V;
   t.cap_min_V = start_V;
+  const double high_margin_V = hs.target_V - upper_V;
   if (mono) {
+    t.high_s = th * std::log((hs.target_V - start_V) / high_margin_V) + tpd;
     t.low_s = tl * std::log(100.0);  // recovery to within 1 % of the floor, as in the model
     return t;
   }
-  t.low_s = tl * std::log((peak_V - ls.target_V) / (lower_V - ls.target_V)) + tpd;
+  const double low_margin_V = lower_V - ls.target_V;
+  const double per_margins = 1.0 / (high_margin_V * low_margin_V);
+  t.high_s = th * std::log((hs.target_V - start_V) * low_margin_V * per_margins) + tpd;
+  t.low_s = tl * std::log((peak_V - ls.target_V) * high_margin_V * per_margins) + tpd;
   t.period_s = t.high_s + t.low_s;
   t.frequency_Hz = 1.0 / t.period_s;
-  t.duty = t.high_s / t.period_s;
+  t.duty = t.high_s * t.frequency_Hz;
   return t;
 }
 
