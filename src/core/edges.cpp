@@ -201,9 +201,13 @@ Meeting meet_curves(const TimeBase& time, std::span<const double> v, Spans s, do
 
 EdgeScan output_edges(const TimeBase& time, std::span<const double> out_V,
                       const EdgeOptions& options) {
+  return output_edges(time, out_V, two_levels(out_V, channel_spread(out_V)), options);
+}
+
+EdgeScan output_edges(const TimeBase& time, std::span<const double> out_V, const TwoLevels& levels,
+                      const EdgeOptions& options) {
   EdgeScan scan;
-  const ChannelSpread spread = channel_spread(out_V);
-  scan.levels = two_levels(out_V, spread);
+  scan.levels = levels;
   const double swing = scan.levels.swing_V();
   if (!(swing > 0.0)) return scan;
   const double mid = scan.levels.low_V + 0.5 * swing;

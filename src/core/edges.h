@@ -44,6 +44,10 @@ struct EdgeScan {
 // signal: no edge is interpolated across them.
 EdgeScan output_edges(const TimeBase& time, std::span<const double> out_V,
                       const EdgeOptions& options = {});
+// The same between levels the caller has already found with two_levels (levels.h), which
+// saves the passes over the samples that finding them again would cost.
+EdgeScan output_edges(const TimeBase& time, std::span<const double> out_V, const TwoLevels& levels,
+                      const EdgeOptions& options = {});
 
 // Edges from a capacitor-node sawtooth: a falling edge at each maximum, a
 // rising edge at each minimum. Each turnaround time is where quadratics fitted

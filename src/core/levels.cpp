@@ -56,29 +56,42 @@ class Histogram {
 // Samples equal to level that sit in runs of three or more, as a share of
 // the finite samples, and how many such runs there are, counting a run only
 // when the signal has crossed mid since the last one (once per cycle at most).
-std::pair<double, std::size_t> flat_runs(std::span<const double> values, double level, double mid,
-                                         std::size_t finite) {
-  if (finite == 0) return {0.0, 0};
+struct FlatRuns {
+  double level, mid;
   std::size_t in_runs = 0, run = 0, runs = 0;
   bool crossed = true;
-  auto close = [&] {
+  void close() {
     if (run >= 3) {
       in_runs += run;
       if (crossed) ++runs;
       crossed = false;
     }
     run = 0;
-  };
-  for (double v : values) {
+  }
+  void add(double v) {
     if (v == level) {
       ++run;
-      continue;
+      return;
     }
     close();
     if ((level < mid && v > mid) || (level > mid && v < mid)) crossed = true;
   }
-  close();
-  return {static_cast<double>(in_runs) / static_cast<double>(finite), runs};
+};
+
+// Both levels' runs in one pass over the values.
+std::pair<std::pair<double, std::size_t>, std::pair<double, std::size_t>> flat_runs(
+    std::span<const double> values, double lo, double hi, double mid, std::size_t finite) {
+  FlatRuns a{lo, mid}, b{hi, mid};
+  for (double v : values) {
+    a.add(v);
+    b.add(v);
+  }
+  a.close();
+  b.close();
+  const auto share = [finite](const FlatRuns& f) {
+    return std::pair{static_cast<double>(f.in_runs) / static_cast<double>(finite), f.runs};
+  };
+  return {share(a), share(b)};
 }
 
 }  // namespace
@@ -107,8 +120,9 @@ ChannelSpread channel_spread(std::span<const double> values) {
   s.p_high_V = h.quantile(0.999);
   s.median_V = h.quantile(0.5);
   if (hi > lo) {
-    std::tie(s.at_min_fraction, s.at_min_runs) = flat_runs(values, lo, s.median_V, s.finite);
-    std::tie(s.at_max_fraction, s.at_max_runs) = flat_runs(values, hi, s.median_V, s.finite);
+    const auto [at_min, at_max] = flat_runs(values, lo, hi, s.median_V, s.finite);
+    std::tie(s.at_min_fraction, s.at_min_runs) = at_min;
+    std::tie(s.at_max_fraction, s.at_max_runs) = at_max;
   }
   return s;
 }

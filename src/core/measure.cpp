@@ -229,7 +229,7 @@ Measurement measure(const Capture& capture, const NodeMap& map, const MeasureOpt
                       node_name(capture, map.out), format_percent(levels.mid_band_fraction, 0)));
       try_cap = true;
     } else {
-      scan = output_edges(time, out, options.edges);
+      scan = output_edges(time, out, levels, options.edges);
       m.edge_node = "out";
       m.summary.out_low_V = scan.levels.low_V;
       m.summary.out_high_V = scan.levels.high_V;
