@@ -175,7 +175,10 @@ void add_fit_command(CLI::App& app, int& exit_code) {
   cmd->add_option("--change", args->changes,
                   "a known change for one capture, counted from 1 in the order given: "
                   "N:supply=VOLTS (taken at another supply) or N:PART||OHMS (a known resistor "
-                  "added across a part; quote it from the shell), e.g. 2:supply=12, '2:R2||100k'");
+                  "added across a part; quote it from the shell), e.g. 2:supply=12, '2:R2||100k'")
+      ->expected(1)  // one text per --change: the captures that follow are not swallowed
+      ->multi_option_policy(CLI::MultiOptionPolicy::TakeAll)
+      ->allow_extra_args(false);
   cmd->add_option("--out", args->nodes.out,
                   "output-pin channel, by header name or 1-based file column (default: the "
                   "design's [capture] section, else guessed)");

@@ -142,9 +142,11 @@ TEST_CASE("fit: a known resistor across R2 in a second capture, fitted jointly, 
 TEST_CASE("fit: a second capture at another supply, said with --change, passes") {
   const std::string at9 = astable_csv("fit-9V.csv", 9.0, 4.7e3, 22e3, 100e-9);
   const std::string at12 = astable_csv("fit-12V.csv", 12.0, 4.7e3, 22e3, 100e-9);
-  const Run r = run(fit(at9 + " " + at12 + " --design " + design_path("fit-design-4.toml") +
-                        " --change 2:supply=12"));
+  // --change before the captures takes one text: the captures stay captures.
+  const Run r = run(fit("--change 2:supply=12 " + at9 + " " + at12 + " --design " +
+                        design_path("fit-design-4.toml")));
   CHECK(r.exit_code == 0);
+  CHECK(r.out.find("\n  2  ") != std::string::npos);
   CHECK(r.out.find("fit-12V.csv (taken at 12.0 V): ") != std::string::npos);
 }
 
