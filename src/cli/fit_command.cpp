@@ -75,14 +75,18 @@ NodeMap capture_nodes(const Capture& capture, const Design& design, const NodeRe
   const Node nodes[] = {{"output pin", flags.out, design.out, &NodeRequest::out, &NodeMap::out},
                         {"capacitor node", flags.cap, design.cap, &NodeRequest::cap, &NodeMap::cap},
                         {"control pin", flags.ctl, design.ctl, &NodeRequest::ctl, &NodeMap::ctl}};
+  // Most captures hold every column their design names: one pass over the channels then.
   NodeRequest request;
+  for (const Node& n : nodes) request.*n.request = n.flag.empty() ? n.design.column : n.flag;
+  try {
+    return map_nodes(capture, request);
+  } catch (const InputError&) {
+    // An option's channel that is missing throws again below, with the option's name.
+  }
   std::vector<const Node*> absent;
   for (const Node& n : nodes) {
-    if (!n.flag.empty()) {
-      request.*n.request = n.flag;
-    } else if (!n.design.column.empty() && has_channel(capture, n.design.column)) {
-      request.*n.request = n.design.column;
-    } else if (!n.design.column.empty()) {
+    if (n.flag.empty() && !n.design.column.empty() && !has_channel(capture, n.design.column)) {
+      request.*n.request = std::string();
       absent.push_back(&n);
     }
   }

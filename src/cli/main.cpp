@@ -8,7 +8,8 @@
 int main(int argc, char** argv) {
   CLI::App app{
       "benchtau: a bench companion for 555-type timer circuits. It reads a capture of the\n"
-      "timer's output, capacitor and control nodes and measures every cycle."};
+      "timer's output, capacitor and control nodes, measures every cycle and, given the board's\n"
+      "design, says which part is out of spec."};
   app.set_version_flag("--version", std::string("benchtau ") + BENCHTAU_VERSION);
   app.require_subcommand(1);
   app.footer(
