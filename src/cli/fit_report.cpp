@@ -150,6 +150,33 @@ void parts_section(std::string& out, const Diagnosis& d) {
                         Align::right, Align::right, Align::left});
 }
 
+// The supply (one per capture) and the timer's own figures, under the leading explanation. The
+// supply always shows; a chip figure only when the fit moved it beyond two of its prior's sigmas
+// (the rest sit where the design or the family puts them, and --json lists them).
+void figures_section(std::string& out, const Diagnosis& d) {
+  std::vector<std::vector<std::string>> rows{
+      {"figure", "nominal", "fitted", "+/- sigma", "from data", "status"}};
+  std::size_t left_out = 0;
+  for (const FittedPart& f : d.figures) {
+    const bool supply = f.ref.starts_with("supply");
+    if (!supply && f.status == PartStatus::in_spec) {
+      ++left_out;
+      continue;
+    }
+    rows.push_back({f.ref, format_eng(f.nominal, f.unit), format_eng(f.fitted, f.unit),
+                    format_eng(f.sigma, f.unit), format_percent(f.data_share, 0),
+                    f.status == PartStatus::in_spec ? "as expected" : "off its prior"});
+  }
+  if (rows.size() == 1) return;
+  out += "\nsupply and timer figures as fitted\n";
+  out += columns(
+      rows, {Align::left, Align::right, Align::right, Align::right, Align::right, Align::left});
+  if (left_out > 0) {
+    out += fmt::format("  {} more timer figure{} as expected: --json lists them\n", left_out,
+                       left_out == 1 ? "" : "s");
+  }
+}
+
 // The explanations in one ranking: "all parts in tolerance" takes its place among the suspects.
 void explanations_section(std::string& out, const Diagnosis& d) {
   if (d.suspects.empty() && !(d.healthy_probability > 0.0)) return;
@@ -259,6 +286,7 @@ std::string fit_table(const FitReport& r, bool per_cycle) {
   std::string out;
   heading(out, r);
   parts_section(out, d);
+  figures_section(out, d);
   explanations_section(out, d);
   lines_section(out, "fixed by the data", d.fixed);
   lines_section(out, "cannot be separated", d.unseparated);
@@ -373,6 +401,20 @@ void measurement_json(JsonWriter& j, const FitReport& r, std::size_t i, bool per
   j.end_object();
 }
 
+void fitted_json(JsonWriter& j, std::string_view key, const std::vector<FittedPart>& parts) {
+  j.key(key).begin_array();
+  for (const FittedPart& p : parts) {
+    j.begin_object();
+    j.key("ref").value(p.ref).key("unit").value(p.unit);
+    j.key("nominal").value(p.nominal).key("tolerance").value(p.tolerance);
+    j.key("fitted").value(p.fitted).key("sigma").value(p.sigma);
+    j.key("deviation").value(p.deviation).key("data_share").value(p.data_share);
+    j.key("status").value(part_status_name(p.status));
+    j.end_object();
+  }
+  j.end_array();
+}
+
 void strings_json(JsonWriter& j, std::string_view key, const std::vector<std::string>& v) {
   j.key(key).begin_array();
   for (const std::string& s : v) j.value(s);
@@ -394,17 +436,8 @@ std::string fit_json(const FitReport& r, bool per_cycle) {
   optional_text(j, "mode", d.mode);
   j.key("healthy_probability").value(d.healthy_probability);
   j.key("chi2_per_dof").value(d.chi2_per_dof);
-  j.key("parts").begin_array();
-  for (const FittedPart& p : d.parts) {
-    j.begin_object();
-    j.key("ref").value(p.ref).key("unit").value(p.unit);
-    j.key("nominal").value(p.nominal).key("tolerance").value(p.tolerance);
-    j.key("fitted").value(p.fitted).key("sigma").value(p.sigma);
-    j.key("deviation").value(p.deviation).key("data_share").value(p.data_share);
-    j.key("status").value(part_status_name(p.status));
-    j.end_object();
-  }
-  j.end_array();
+  fitted_json(j, "parts", d.parts);
+  fitted_json(j, "figures", d.figures);
   j.key("suspects").begin_array();
   for (const Suspect& s : d.suspects) {
     j.begin_object();

@@ -148,6 +148,13 @@ TEST_CASE("fit: a second capture at another supply, said with --change, passes")
   CHECK(r.exit_code == 0);
   CHECK(r.out.find("\n  2  ") != std::string::npos);
   CHECK(r.out.find("fit-12V.csv (taken at 12.0 V): ") != std::string::npos);
+  // Unsaid, the fit moves the second capture's supply from the design's 9 V to 12 V, far
+  // beyond its 1 % prior, and the figures table says so.
+  const Run without = run(fit(at9 + " " + at12 + " --design " + design_path("fit-design-10.toml")));
+  const auto line = without.out.find("\n  supply (capture 2)   9.00 V  12.0 V ");
+  REQUIRE(line != std::string::npos);
+  const std::string row = without.out.substr(line + 1, without.out.find('\n', line + 1) - line);
+  CHECK(row.ends_with("  off its prior\n"));
 }
 
 TEST_CASE("fit --cycles lists every segment's time constant") {

@@ -150,6 +150,10 @@ TEST_CASE("fit table: a fail on a close call, two captures, what to measure next
   g.parts = {part("R1", "ohm", 4700, 0.01, 4700, 47, 0.0, PartStatus::in_spec),
              part("R2", "ohm", 22e3, 0.01, 22e3, 220, 0.0, PartStatus::in_spec),
              part("C1", "F", 100e-9, 0.2, 61.7e-9, 0.412e-9, 1.0, PartStatus::low)};
+  g.figures = {part("supply (capture 1)", "V", 9.0, kNaN, 9.02, 0.005, 1.0, PartStatus::in_spec),
+               part("supply (capture 2)", "V", 12.0, kNaN, 12.1, 0.005, 1.0, PartStatus::in_spec),
+               part("divider resistance", "ohm", 5e3, kNaN, 5e3, 900, 0.1, PartStatus::in_spec),
+               part("output low level", "V", 0.1, kNaN, 0.35, 0.02, 0.9, PartStatus::undetermined)};
   g.healthy_probability = 0.0001;
   g.suspects = {suspect("C1", SuspectKind::value_low, 0.5499, "C1 has lost about 38 %"),
                 suspect("C1-leakage", SuspectKind::leakage, 0.45, "C1 leaks 1.2 uA")};
@@ -176,6 +180,13 @@ TEST_CASE("fit table: a fail on a close call, two captures, what to measure next
         "  R1    4.70 kohm    +/- 1 %  4.70 kohm   47.0 ohm      0.0 %        0 %  in spec\n"
         "  R2    22.0 kohm    +/- 1 %  22.0 kohm    220 ohm      0.0 %        0 %  in spec\n"
         "  C1       100 nF   +/- 20 %    61.7 nF     412 pF    -38.3 %      100 %  low\n"
+        "\n"
+        "supply and timer figures as fitted\n"
+        "  figure              nominal  fitted  +/- sigma  from data  status\n"
+        "  supply (capture 1)   9.00 V  9.02 V    5.00 mV      100 %  as expected\n"
+        "  supply (capture 2)   12.0 V  12.1 V    5.00 mV      100 %  as expected\n"
+        "  output low level     100 mV  350 mV    20.0 mV       90 %  off its prior\n"
+        "  1 more timer figure as expected: --json lists them\n"
         "\n"
         "explanations, most probable first\n"
         "   55.0 %   C1          value low     C1 has lost about 38 %\n"
@@ -332,6 +343,7 @@ TEST_CASE("fit JSON: no oscillation, with the measurement as measure --json writ
         "  \"healthy_probability\": 0,\n"
         "  \"chi2_per_dof\": null,\n"
         "  \"parts\": [],\n"
+        "  \"figures\": [],\n"
         "  \"suspects\": [],\n"
         "  \"fixed\": [],\n"
         "  \"unseparated\": [],\n"
@@ -392,6 +404,8 @@ TEST_CASE("fit JSON: parts, suspects and the replacement of a fail") {
   g.reason = "C1 has lost about 38 % of its capacitance";
   g.mode = "both-nodes";
   g.parts = {part("C1", "F", 100e-9, 0.25, 50e-9, 0.5e-9, 1.0, PartStatus::low)};
+  FittedPart supply = part("supply", "V", 9.0, kNaN, 9.0, 0.25, 0.75, PartStatus::in_spec);
+  g.figures = {supply};
   g.healthy_probability = 0.125;
   Suspect s = suspect("C1", SuspectKind::value_low, 0.875, "C1 has lost about half");
   s.fitted = 50e-9;
@@ -429,6 +443,19 @@ TEST_CASE("fit JSON: parts, suspects and the replacement of a fail") {
         "      \"deviation\": -0.5,\n"
         "      \"data_share\": 1,\n"
         "      \"status\": \"low\"\n"
+        "    }\n"
+        "  ],\n"
+        "  \"figures\": [\n"
+        "    {\n"
+        "      \"ref\": \"supply\",\n"
+        "      \"unit\": \"V\",\n"
+        "      \"nominal\": 9,\n"
+        "      \"tolerance\": null,\n"
+        "      \"fitted\": 9,\n"
+        "      \"sigma\": 0.25,\n"
+        "      \"deviation\": 0,\n"
+        "      \"data_share\": 0.75,\n"
+        "      \"status\": \"in-spec\"\n"
         "    }\n"
         "  ],\n"
         "  \"suspects\": [\n"
