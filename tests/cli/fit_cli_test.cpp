@@ -12,9 +12,9 @@ namespace {
 
 // A CMOS two-resistor astable whose chip has next to none of the second-order figures, so that
 // the textbook relations hold: charging through R1 + R2 toward the supply, discharging through
-// R2 toward ground, between 1/3 and 2/3 of the supply (common practice). The delay is 1 ns, not
-// 0: a zero delay leaves the diagnosis with no explanation it can fit (see the report of this
-// change); 1 ns moves a 1.5 ms phase by under one part in a million.
+// R2 toward ground, between 1/3 and 2/3 of the supply (common practice). The delay is 1 ns
+// rather than 0, which the diagnosis could not fit when this was written (its prior was taken
+// on a log scale); 1 ns moves a 1.5 ms phase by under one part in a million.
 constexpr const char* kDesign = R"(name = "bench test: ideal astable"
 supply_V = 9.0
 family = "cmos"
