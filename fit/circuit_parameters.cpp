@@ -1,6 +1,7 @@
 // benchtau: the circuit fit's unknowns and their priors.
 #include "fit/circuit_parameters.h"
 
+#include <algorithm>
 #include <cmath>
 
 namespace benchtau {
@@ -21,15 +22,24 @@ std::string unit_of(PartRole role) {
 }
 
 // A chip figure as an unknown: its design value (the family's typical one unless the design
-// file overrides it) as the prior's centre.
-FitParameter figure(std::string id, std::string unit, double TimerFigures::*f,
-                    const TimerFigures& typical, Transform t, double sigma) {
+// file overrides it) as the prior's centre. A figure the design file gives is that chip's,
+// known to about 5 % (a tenth of the spread otherwise); a positive figure the design sets to
+// zero (an ideal switch, no delay) is fitted on a linear scale around zero, with `zero_sigma`.
+FitParameter figure(std::string id, std::string unit, double TimerFigures::*f, const Design& design,
+                    Transform t, double sigma, double zero_sigma) {
   FitParameter p;
   p.id = std::move(id);
   p.unit = std::move(unit);
   p.slot.figure = f;
+  p.nominal = design.figures.*f;
+  const bool given = std::find(design.figures_given.begin(), design.figures_given.end(), f) !=
+                     design.figures_given.end();
+  if (t == Transform::log && !(p.nominal > 0.0)) {
+    t = Transform::linear;
+    sigma = zero_sigma;
+  }
   p.transform = t;
-  p.nominal = typical.*f;
+  if (given) sigma = t == Transform::log ? std::fmin(sigma, 0.05) : 0.1 * sigma;
   p.prior = {p.to_x(p.nominal), sigma};
   return p;
 }
@@ -90,27 +100,28 @@ std::vector<FitParameter> circuit_parameters(const Design& design,
   // read as a fault: a stiffer discharge switch or a lower output level moves the capacitor's
   // targets as a leakage would.
   const TimerFigures& f = design.figures;
+  const Design& d = design;
   const bool bipolar = design.family == Family::bipolar;
-  params.push_back(figure("divider resistance", "ohm", &TimerFigures::divider_ohm, f,
-                          Transform::log, std::log(1.3)));
-  params.push_back(figure("output high drop", "V", &TimerFigures::out_high_drop_V, f,
-                          Transform::linear, std::fmax(f.out_high_drop_spread_V, 0.02)));
-  params.push_back(figure("output source resistance", "ohm", &TimerFigures::out_source_ohm, f,
-                          Transform::log, std::log(2.0)));
-  params.push_back(figure("output low level", "V", &TimerFigures::out_low_V, f, Transform::linear,
-                          std::fmax(f.out_low_spread_V, 0.01)));
-  params.push_back(figure("output sink resistance", "ohm", &TimerFigures::out_sink_ohm, f,
-                          Transform::log, std::log(2.0)));
-  params.push_back(figure("discharge on-resistance", "ohm", &TimerFigures::discharge_on_ohm, f,
-                          Transform::log, std::log(3.0)));
-  params.push_back(figure("discharge saturation", "V", &TimerFigures::discharge_sat_V, f,
-                          Transform::linear, bipolar ? 0.05 : 0.005));
-  params.push_back(figure("threshold input current", "A", &TimerFigures::threshold_current_A, f,
-                          Transform::linear, bipolar ? 100e-9 : 50e-12));
-  params.push_back(figure("trigger input current", "A", &TimerFigures::trigger_current_A, f,
-                          Transform::linear, bipolar ? 300e-9 : 50e-12));
-  params.push_back(figure("propagation delay", "s", &TimerFigures::propagation_delay_s, f,
-                          Transform::log, std::log(2.0)));
+  params.push_back(figure("divider resistance", "ohm", &TimerFigures::divider_ohm, d,
+                          Transform::log, std::log(1.3), 1e3));
+  params.push_back(figure("output high drop", "V", &TimerFigures::out_high_drop_V, d,
+                          Transform::linear, std::fmax(f.out_high_drop_spread_V, 0.02), 0.0));
+  params.push_back(figure("output source resistance", "ohm", &TimerFigures::out_source_ohm, d,
+                          Transform::log, std::log(2.0), 20.0));
+  params.push_back(figure("output low level", "V", &TimerFigures::out_low_V, d, Transform::linear,
+                          std::fmax(f.out_low_spread_V, 0.01), 0.0));
+  params.push_back(figure("output sink resistance", "ohm", &TimerFigures::out_sink_ohm, d,
+                          Transform::log, std::log(2.0), 10.0));
+  params.push_back(figure("discharge on-resistance", "ohm", &TimerFigures::discharge_on_ohm, d,
+                          Transform::log, std::log(3.0), 10.0));
+  params.push_back(figure("discharge saturation", "V", &TimerFigures::discharge_sat_V, d,
+                          Transform::linear, bipolar ? 0.05 : 0.005, 0.0));
+  params.push_back(figure("threshold input current", "A", &TimerFigures::threshold_current_A, d,
+                          Transform::linear, bipolar ? 100e-9 : 50e-12, 0.0));
+  params.push_back(figure("trigger input current", "A", &TimerFigures::trigger_current_A, d,
+                          Transform::linear, bipolar ? 300e-9 : 50e-12, 0.0));
+  params.push_back(figure("propagation delay", "s", &TimerFigures::propagation_delay_s, d,
+                          Transform::log, std::log(2.0), 100e-9));
   return params;
 }
 

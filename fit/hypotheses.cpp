@@ -6,6 +6,10 @@
 namespace benchtau {
 namespace {
 
+// A part that is off: its ln value spreads 0.4 about where its kind fails (a factor of 1.5 at
+// one sigma), wide enough for a value that has gone a long way.
+constexpr double kOffSigma = 0.4;
+
 bool is_cap_kind(PartKind k) {
   switch (k) {
     case PartKind::film:
@@ -20,8 +24,11 @@ bool is_cap_kind(PartKind k) {
   }
 }
 
-// How often a part of this kind is the fault, relative to a healthy board, and where its
-// value usually goes (ln of the typical factor). Common practice, from memory (hypotheses.h).
+// How often a part of this kind is the fault, relative to a healthy board, and which way its
+// value goes when it is (ln of the typical factor). Common practice, from memory
+// (hypotheses.h): resistors fail upward (film cracks, carbon drift, a joint going high), and
+// capacitors lose capacitance (drying, ageing, self-healing of film); the opposite ways are
+// rarer, not impossible, so the prior's spread (kOffSigma) leaves room for them.
 struct FailureMode {
   double weight = 0.02;
   double log_shift = 0.0;
@@ -29,34 +36,39 @@ struct FailureMode {
 
 FailureMode failure_mode(const Part& p) {
   const bool cap = p.role == PartRole::timing_cap || is_cap_kind(p.kind);
-  FailureMode m;
   switch (p.kind) {
     case PartKind::electrolytic:
-      return {0.20, std::log(0.7)};
+      return {0.20, std::log(0.6)};
     case PartKind::tantalum:
-      return {0.05, std::log(0.9)};
+      return {0.05, std::log(0.8)};
     case PartKind::x7r:
-      return {0.05, std::log(0.85)};
+      return {0.05, std::log(0.8)};
     case PartKind::ceramic:
-      return {0.03, 0.0};
+      return {0.03, std::log(0.85)};
     case PartKind::film:
-      return {0.01, 0.0};
+      return {0.01, std::log(0.85)};
     case PartKind::c0g:
-      return {0.005, 0.0};
+      return {0.005, std::log(0.9)};
+    default:
+      break;
+  }
+  if (cap) return {0.05, std::log(0.8)};
+  FailureMode m;
+  switch (p.kind) {
     case PartKind::carbon_film:
-      m = {0.04, std::log(1.1)};
+      m = {0.04, std::log(1.3)};
       break;
     case PartKind::metal_film:
     case PartKind::wirewound:
-      m = {0.01, 0.0};
+      m = {0.01, std::log(1.2)};
       break;
     default:
-      m = cap ? FailureMode{0.05, 0.0} : FailureMode{0.02, 0.0};
+      m = {0.02, std::log(1.25)};
       break;
   }
-  if (!cap && p.value >= 1e6) {
+  if (p.value >= 1e6) {
     m.weight += 0.03;
-    m.log_shift = std::log(1.1);
+    m.log_shift = std::log(1.3);
   }
   return m;
 }
@@ -104,7 +116,7 @@ std::vector<Explanation> explanations(const Design& design, std::span<const FitP
     e.param = static_cast<std::ptrdiff_t>(i);
     e.weight = m.weight;
     e.spec.priors = base;
-    e.spec.priors[i] = {std::log(f.nominal) + m.log_shift, 0.5};
+    e.spec.priors[i] = {std::log(f.nominal) + m.log_shift, kOffSigma};
     out.push_back(std::move(e));
   }
 

@@ -2,13 +2,15 @@
 #pragma once
 
 // One explanation is "every part within tolerance"; the others each let one thing go:
-//   a part's value off: that part's prior widened to a factor of about 1.65 at one sigma
-//     (sigma 0.5 in ln value), centred where its kind usually fails;
+//   a part's value off: that part's prior widened to a factor of about 1.5 at one sigma
+//     (sigma 0.4 in ln value), centred where its kind usually fails (resistors above their
+//     value, capacitors below);
 //   a leakage across the timing capacitor: a conductance across it, scored over a range
 //     (evidence.h);
 //   an unexpected load on a decoupled control pin: a conductance to ground, likewise.
 // Each has a prior weight, how often that fault is behind a drifting timer relative to a
 // healthy board. They are common practice of repair benches, from memory, not measured rates:
+//   resistors that fail mostly go up in value, capacitors mostly lose capacitance;
 //   aluminium electrolytics dry out, losing capacitance and growing leakage, with age and heat;
 //   tantalum and class-II ceramics (X7R) lose some capacitance with age and bias;
 //   carbon-film and high-value (1 M and up) resistors drift upward;

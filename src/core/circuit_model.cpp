@@ -17,18 +17,27 @@ namespace {
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
 // Sum of branches into one node: each a source V behind R, or a current drawn.
+// A branch of zero resistance (a design may give an ideal output or switch) holds the node
+// at its voltage outright.
 struct Node {
   double g = 0.0;  // total conductance, S
   double i = 0.0;  // sum of V/R less currents drawn, A
+  bool held = false;
+  double held_V = 0.0;
 
   void branch(double v, double r) {
     if (!(r < kOpen)) return;
+    if (!(r > 0.0)) {
+      held = true;
+      held_V = v;
+      return;
+    }
     g += 1.0 / r;
     i += v / r;
   }
   void draw(double amps) { i -= amps; }
-  double v() const { return i / g; }
-  double r() const { return 1.0 / g; }
+  double v() const { return held ? held_V : i / g; }
+  double r() const { return held ? 0.0 : 1.0 / g; }
 };
 
 // A Thevenin pair.
@@ -38,6 +47,7 @@ struct Source {
 };
 
 Source thevenin(const Node& n) {
+  if (n.held) return {n.held_V, 0.0};
   if (!(n.g > 0.0)) return {0.0, kOpen};
   return {n.v(), n.r()};
 }

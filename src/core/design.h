@@ -65,6 +65,7 @@ struct Design {
   double supply_V = 0.0;
   Family family = Family::bipolar;
   TimerFigures figures;  // typical_figures(family) with the file's overrides
+  std::vector<double TimerFigures::*> figures_given;  // which figures the file set
   CircuitKind kind = CircuitKind::astable_two_resistor;
   ControlWiring control = ControlWiring::decoupled;
   ResetWiring reset = ResetWiring::supply;

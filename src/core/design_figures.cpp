@@ -41,13 +41,15 @@ constexpr std::array kFigures{
 
 }  // namespace
 
-void read_timer(const design_toml::Reader& r, const toml::table& timer, TimerFigures& figures) {
+void read_timer(const design_toml::Reader& r, const toml::table& timer, TimerFigures& figures,
+                std::vector<double TimerFigures::*>& given) {
   std::array<std::string_view, kFigures.size()> keys{};
   for (std::size_t k = 0; k < kFigures.size(); ++k) keys[k] = kFigures[k].key;
   r.check_keys(timer, keys, "in [timer]");
   for (const Figure& f : kFigures) {
     if (const toml::node* n = timer.get(f.key)) {
       figures.*f.field = r.eng(*n, {f.key, "[timer]"}, f.unit, f.sign);
+      given.push_back(f.field);
     }
   }
   if (!(figures.supply_min_V < figures.supply_max_V)) {

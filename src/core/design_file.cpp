@@ -227,7 +227,7 @@ Design read_design_text(std::string_view text, const std::string& source) {
   d.figures = typical_figures(d.family);
   if (const toml::node* timer = root.get("timer")) {
     design_detail::read_timer(r, r.table(*timer, "timer", "([timer] on a line of its own)"),
-                              d.figures);
+                              d.figures, d.figures_given);
   }
 
   const toml::node* circuit = root.get("circuit");

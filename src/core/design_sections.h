@@ -26,6 +26,8 @@ void check_roles(const design_toml::Reader& r, const Design& design,
                  const toml::table* parts_table);
 
 // [timer]: overrides of the family's figures, applied to figures.
-void read_timer(const design_toml::Reader& r, const toml::table& timer, TimerFigures& figures);
+// given collects the figures the table sets.
+void read_timer(const design_toml::Reader& r, const toml::table& timer, TimerFigures& figures,
+                std::vector<double TimerFigures::*>& given);
 
 }  // namespace benchtau::design_detail

@@ -214,3 +214,18 @@ TEST_CASE("propagation delay: each phase runs on past its threshold") {
   CHECK(slow.low_s - fast.low_s ==
         Approx(tpd + slope_at_upper * tpd / slope_low_at_upper).epsilon(0.05));
 }
+
+TEST_CASE("zero-ohm figures (an ideal switch and output) hold their node outright") {
+  // The same textbook relations with the discharge switch and the output given as exactly
+  // 0 ohm, as a design file may: no division by zero, the output at its unloaded levels.
+  Circuit k = two_resistor(10e3, 47e3, 100e-9);
+  k.v.chip.discharge_on_ohm = 0.0;
+  k.v.chip.out_source_ohm = 0.0;
+  k.v.chip.out_sink_ohm = 0.0;
+  k.v.probe_out_ohm = 10e6;
+  const CyclePrediction p = predict_cycle(k);
+  REQUIRE(p.oscillates);
+  CHECK(p.low_s == Approx(std::log(2.0) * 47e3 * 100e-9).epsilon(1e-9));
+  CHECK(p.out_high_V == Approx(9.0 - k.v.chip.out_high_drop_V));
+  CHECK(p.out_low_V == Approx(k.v.chip.out_low_V));
+}

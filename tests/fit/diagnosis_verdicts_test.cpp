@@ -95,6 +95,24 @@ TEST_CASE("a second capture with a known resistor across R2 separates R2 from C1
   CHECK_FALSE(g.suspects.front().ranked_by_prior);
 }
 
+TEST_CASE("a design giving an ideal timer (no delay, stiff output) is fitted, not refused",
+          "[diagnosis]") {
+  // Zero is a fair value for a figure fitted on a log scale elsewhere: such figures are
+  // fitted on a linear one around it.
+  const Design ideal = edited("[parts]",
+                              "[timer]\npropagation_delay_s = 0\nout_source_ohm = 0\n"
+                              "threshold_current_A = 0\n[parts]");
+  CHECK(ideal.figures_given.size() == 3);
+  const test::BenchCapture c = test::capture_board(ideal, {}, true);
+  const Diagnosis healthy = diagnose(ideal, std::span(&c.board, 1));
+  INFO(healthy.reason);
+  CHECK(healthy.verdict == Verdict::pass);
+  const test::BenchCapture f = test::capture_board(ideal, {"C1", 0.7}, true);
+  const Diagnosis dried = diagnose(ideal, std::span(&f.board, 1));
+  REQUIRE_FALSE(dried.suspects.empty());
+  CHECK(dried.suspects.front().ref == "C1");
+}
+
 TEST_CASE("a change naming a part the design lacks is an input error", "[diagnosis]") {
   test::BenchCapture c = test::capture_board(design(), {}, false);
   c.board.change.across_ref = "R9";
