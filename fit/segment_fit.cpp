@@ -77,8 +77,11 @@ std::vector<std::size_t> spread(std::size_t n, std::size_t m) {
 // the 3 parameters each segment's fit spent (the residuals of a fit are smaller than the
 // noise by sqrt((n - p) / n)).
 double residual_sigma_V(const SegmentSamples& s, const std::vector<RawSegment>& raws) {
+  std::size_t fitted = 0;
+  for (std::size_t k = 0; k < raws.size(); ++k)
+    if (raws[k].converged) fitted += s.windows[k].used;
   std::vector<double> r;
-  r.reserve(s.y_V.size());
+  r.reserve(fitted);
   std::size_t params = 0;
   for (std::size_t k = 0; k < raws.size(); ++k) {
     if (!raws[k].converged) continue;

@@ -61,15 +61,31 @@ SegmentSamples segment_samples(const TimeBase& time, std::span<const double> cap
   }
   out.outside = n - std::min(n, covered);
 
-  out.x_s.reserve(total_used);
-  out.y_V.reserve(total_used);
+  out.cap_V = cap_V;
+  out.x_s.resize(total_used);
+  const bool gaps = std::any_of(out.windows.begin(), out.windows.end(),
+                                [](const SegmentWindow& w) { return w.missing > 0; });
+  if (gaps) out.gap_y_V = std::make_unique_for_overwrite<double[]>(total_used);
+  std::size_t offset = 0;
   for (SegmentWindow& w : out.windows) {
-    w.offset = out.x_s.size();
-    for (std::size_t i = w.first; i < w.end; ++i) {
-      if (!std::isfinite(cap_V[i])) continue;
-      out.x_s.push_back(time.at(i) - w.start_s);
-      out.y_V.push_back(cap_V[i]);
+    w.offset = offset;
+    double* x = out.x_s.data() + offset;
+    if (w.missing == 0) {
+      if (time.uniform()) {
+        for (std::size_t i = w.first; i < w.end; ++i) *x++ = time.at(i) - w.start_s;
+      } else {
+        const double* t = time.t_s.data();
+        for (std::size_t i = w.first; i < w.end; ++i) *x++ = t[i] - w.start_s;
+      }
+    } else {
+      double* y = out.gap_y_V.get() + offset;
+      for (std::size_t i = w.first; i < w.end; ++i) {
+        if (!std::isfinite(cap_V[i])) continue;
+        *x++ = time.at(i) - w.start_s;
+        *y++ = cap_V[i];
+      }
     }
+    offset += w.used;
   }
   return out;
 }

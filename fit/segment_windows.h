@@ -3,10 +3,12 @@
 
 // What goes in: the capacitor node (volts, NaN for missing), its time base and the edges in
 // time order. What comes out: for each whole segment (between two successive edges of
-// opposite kinds) the window of samples fitted, and those samples gathered into two flat
-// arrays: times since the segment's start edge (seconds) and values (volts). The arrays are
-// filled once, with one allocation each, so that the fits make none per sample.
+// opposite kinds) the window of samples fitted, its times since the segment's start edge
+// (seconds) gathered into one flat array, and its values (volts), in place in the channel
+// unless NaNs had to be left out. Filled once, with one allocation each, so that the fits make
+// none per sample.
 #include <cstddef>
+#include <memory>
 #include <span>
 #include <vector>
 
@@ -51,19 +53,24 @@ struct SegmentWindow {
 struct SegmentSamples {
   std::vector<SegmentWindow> windows;
   std::vector<double> x_s;  // time since the window's start edge
-  std::vector<double> y_V;  // capacitor voltage
+  // Capacitor voltages: a window without a NaN reads them in place from the channel (cap_V,
+  // which must outlive this); only a window with gaps has its values gathered, into gap_y_V
+  // at its offset. The rest of gap_y_V is never written, so its pages never become resident.
+  std::span<const double> cap_V;
+  std::unique_ptr<double[]> gap_y_V;
   std::size_t outside = 0;  // samples before the first or after the last whole segment
 
   std::span<const double> x(const SegmentWindow& w) const {
     return std::span<const double>(x_s).subspan(w.offset, w.used);
   }
   std::span<const double> y(const SegmentWindow& w) const {
-    return std::span<const double>(y_V).subspan(w.offset, w.used);
+    if (w.missing == 0) return cap_V.subspan(w.first, w.used);
+    return std::span<const double>(gap_y_V.get() + w.offset, w.used);
   }
 };
 
 // Throws std::invalid_argument when the time base does not match the values (explicit times
-// of another length, or a uniform step that is not positive).
+// of another length, or a uniform step that is not positive). The result refers to cap_V.
 SegmentSamples segment_samples(const TimeBase& time, std::span<const double> cap_V,
                                std::span<const Edge> edges, const WindowRule& rule = {});
 
