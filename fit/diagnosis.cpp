@@ -226,6 +226,24 @@ Diagnosis diagnose(const Design& design, std::span<const BoardCapture> captures,
   detail::describe_identifiability(ctx, d.fixed, d.unseparated);
   d.next = detail::suggest_measurements(ctx);
 
+  // A supply or a timer figure pulled far outside its prior: the design (or the supply the
+  // capture was taken at) is not what the board is, and no part can be judged against it.
+  for (std::size_t i = 0; i < problem.params.size(); ++i) {
+    const FitParameter& f = problem.params[i];
+    if (f.part >= 0) continue;
+    const double z = (lead.fit.x[i] - f.prior.mean) / f.prior.sigma;
+    if (std::fabs(z) < 6.0) continue;
+    const bool supply = f.slot.value == &CircuitValues::supply_V;
+    d.verdict = Verdict::inconclusive;
+    d.reason = fmt::format(
+        "the fit had to move the {} to {} against the design's {} ({:.0f} sigma of its "
+        "prior): {}",
+        f.id, format_eng(f.to_value(lead.fit.x[i]), f.unit), format_eng(f.nominal, f.unit), z,
+        supply ? "was the capture taken at another supply? Give it with --change N:supply=VOLTS"
+               : "check the design's [timer] figures and family");
+    return d;
+  }
+
   const bool healthy_leads = lead.explanation.kind == ExplanationKind::all_in_tolerance;
   const bool all_in_spec = std::all_of(d.parts.begin(), d.parts.end(), [](const FittedPart& p) {
     return p.status == PartStatus::in_spec || p.status == PartStatus::undetermined;

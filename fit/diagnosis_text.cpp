@@ -54,7 +54,12 @@ Suspect suspect_of(const DiagnosisContext& c, const Scored& s) {
     out.kind = dev < 0.0 ? SuspectKind::value_low : SuspectKind::value_high;
     const std::string value = with_sigma(out.fitted, out.sigma, out.unit);
     const bool cap = p.role == PartRole::timing_cap;
-    if (cap && dev < 0.0) {
+    if (std::fabs(dev) < 0.005 || (p.tolerance > 0.0 && std::fabs(dev) <= p.tolerance)) {
+      out.sentence = fmt::format(
+          "{} at {} would explain the capture this way, within its "
+          "tolerance ({})",
+          p.ref, value, against(p));
+    } else if (cap && dev < 0.0) {
       out.sentence = fmt::format("{} has lost about {} of its capacitance ({} against {})", p.ref,
                                  format_percent(-dev, 0), value, against(p));
     } else if (cap) {
@@ -157,18 +162,18 @@ void describe_identifiability(const DiagnosisContext& c, std::vector<std::string
     if (diode) {
       g(ku) = 1.0;
       g(kc) = 1.0;
-      combos.push_back({fmt::format("{}·{} (the charging time constant)", ref(iu), cref), g});
+      combos.push_back({fmt::format("{}*{} (the charging time constant)", ref(iu), cref), g});
     } else {
       g(ku) = r1 / (r1 + r2);
       g(kl) = r2 / (r1 + r2);
       g(kc) = 1.0;
       combos.push_back(
-          {fmt::format("({} + {})·{} (the charging time constant)", ref(iu), ref(il), cref), g});
+          {fmt::format("({} + {})*{} (the charging time constant)", ref(iu), ref(il), cref), g});
     }
     g.setZero();
     g(kl) = 1.0;
     g(kc) = 1.0;
-    combos.push_back({fmt::format("{}·{} (the discharging time constant)", ref(il), cref), g});
+    combos.push_back({fmt::format("{}*{} (the discharging time constant)", ref(il), cref), g});
     g.setZero();
     g(ku) = 1.0;
     g(kl) = -1.0;
@@ -180,7 +185,7 @@ void describe_identifiability(const DiagnosisContext& c, std::vector<std::string
     Eigen::VectorXd g = Eigen::VectorXd::Zero(static_cast<Eigen::Index>(n));
     g(kr) = 1.0;
     g(kc) = 1.0;
-    combos.push_back({fmt::format("{}·{} (the time constant)", ref(ir), cref), g});
+    combos.push_back({fmt::format("{}*{} (the time constant)", ref(ir), cref), g});
     apart(kr) = 1.0;
     resistors = ref(ir);
   } else {

@@ -39,9 +39,6 @@ void parse_one(std::string_view text, std::size_t captures, const Design& design
                            "given",
                            number));
   }
-  if (index == 1) {
-    fail(text, "capture 1 is the board as designed: a change applies to capture 2 or later");
-  }
   if (index == 0 || index > captures) {
     fail(text, fmt::format("there is no capture {}: {} capture{} given", index, captures,
                            captures == 1 ? " was" : "s were"));

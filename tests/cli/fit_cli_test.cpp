@@ -95,7 +95,7 @@ TEST_CASE("fit: the demo unit with a dried capacitor fails with C1 named first")
   CHECK(r.out.rfind("greenhouse mister timer, rev B: fail - C1 ", 0) == 0);
   // Unit 12's log has no control pin, which the design's [capture] section names.
   CHECK(has_line(r.out,
-                 "     read as: control pin: not captured (the design's column \"ctl\" is "
+                 "     read as: control pin: not captured (the design's column \"ctl (V)\" is "
                  "not in it)"));
   const std::string s = summary_of(args);
   CHECK(s.rfind("fail C1 value-low ", 0) == 0);

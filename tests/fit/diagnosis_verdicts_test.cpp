@@ -113,6 +113,19 @@ TEST_CASE("a design giving an ideal timer (no delay, stiff output) is fitted, no
   CHECK(dried.suspects.front().ref == "C1");
 }
 
+TEST_CASE("a capture taken at another supply than the design's, unsaid, is inconclusive",
+          "[diagnosis]") {
+  const test::BenchCapture c =
+      test::capture_board(edited("supply_V = 9.0", "supply_V = 12.0"), {}, true);
+  const Diagnosis unsaid = diagnose(design(), std::span(&c.board, 1));
+  INFO(unsaid.reason);
+  CHECK(unsaid.verdict == Verdict::inconclusive);
+  CHECK(unsaid.reason.find("another supply") != std::string::npos);
+  BoardCapture said = c.board;
+  said.change.supply_V = 12.0;
+  CHECK(diagnose(design(), std::span(&said, 1)).verdict == Verdict::pass);
+}
+
 TEST_CASE("a change naming a part the design lacks is an input error", "[diagnosis]") {
   test::BenchCapture c = test::capture_board(design(), {}, false);
   c.board.change.across_ref = "R9";
