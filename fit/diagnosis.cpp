@@ -134,8 +134,25 @@ Diagnosis diagnose(const Design& design, std::span<const BoardCapture> captures,
       if (!has_finding(m, code)) continue;
       const auto f = std::find_if(m.findings.begin(), m.findings.end(),
                                   [&](const Finding& x) { return x.code == code; });
-      return stop_early(d, Verdict::no_oscillation,
-                        fmt::format("{}: the board does not oscillate: {}", c.label, f->message));
+      Diagnosis stopped =
+          stop_early(d, Verdict::no_oscillation,
+                     fmt::format("{}: the board does not oscillate: {}", c.label, f->message));
+      const Part* cap = design.part_with(PartRole::timing_cap);
+      const std::string cref = cap != nullptr ? cap->ref : std::string("the timing capacitor");
+      if (std::string_view(code) == "stuck_low") {
+        stopped.next = {
+            "measure the supply at the timer's pins and the reset pin: a reset "
+            "held low keeps the output low",
+            "check the trigger: the capacitor node must fall below a third of the "
+            "supply to start a cycle"};
+      } else {
+        stopped.next = {fmt::format("capture the capacitor node: if it never reaches two thirds "
+                                    "of the supply, look for a short or a heavy leak across {} "
+                                    "(with the power off)",
+                                    cref),
+                        "measure the control pin: a load there moves both thresholds"};
+      }
+      return stopped;
     }
     const std::size_t need = mono ? 1 : 2;
     if (m.summary.cycles < need) {

@@ -293,6 +293,12 @@ std::string fit_table(const FitReport& r, bool per_cycle) {
   findings_section(out, r);
   lines_section(out, "measure next", d.next);
   replacement_section(out, r);
+  if (!d.next.empty() || d.replacement) {
+    out +=
+        "\nBefore you measure in circuit or lift a part: power off, unplug a mains-powered board, "
+        "and discharge its capacitors (benchtau safety has the rest; local codes and licensed "
+        "practice come first).\n";
+  }
   if (per_cycle) {
     for (const BoardCapture& c : r.captures) segments_section(out, c);
   }

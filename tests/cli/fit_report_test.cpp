@@ -200,12 +200,20 @@ TEST_CASE("fit table: a fail on a close call, two captures, what to measure next
         "  capture the capacitor node as well\n"
         "\n"
         "replacement\n"
-        "  C1 100 nF (E6; 101 nF would be exact): period 3.39 ms against the design's 3.40 ms\n");
+        "  C1 100 nF (E6; 101 nF would be exact): period 3.39 ms against the design's 3.40 ms\n"
+        "\n"
+        "Before you measure in circuit or lift a part: power off, unplug a mains-powered board, "
+        "and discharge its capacitors (benchtau safety has the rest; local codes and licensed "
+        "practice come first).\n");
   // The library's own sentence, when it gives one, replaces the numbers.
   g.replacement->sentence = "replacing C1 with 100 nF (E6) brings the period back";
   const std::string with_sentence = fit_table(r, false);
   CHECK(with_sentence.substr(with_sentence.rfind("replacement\n")) ==
-        "replacement\n  replacing C1 with 100 nF (E6) brings the period back\n");
+        "replacement\n  replacing C1 with 100 nF (E6) brings the period back\n"
+        "\n"
+        "Before you measure in circuit or lift a part: power off, unplug a mains-powered board, "
+        "and discharge its capacitors (benchtau safety has the rest; local codes and licensed "
+        "practice come first).\n");
 }
 
 TEST_CASE("fit table: no oscillation has no parts table and no ranking") {
@@ -230,7 +238,11 @@ TEST_CASE("fit table: no oscillation has no parts table and no ranking") {
         "  problem  stuck_high: not oscillating: the output stays high at 7.30 V\n"
         "\n"
         "measure next\n"
-        "  check for a short across C1\n");
+        "  check for a short across C1\n"
+        "\n"
+        "Before you measure in circuit or lift a part: power off, unplug a mains-powered board, "
+        "and discharge its capacitors (benchtau safety has the rest; local codes and licensed "
+        "practice come first).\n");
 }
 
 TEST_CASE("fit table: inconclusive, a value the data did not fix, and a fault's own row") {

@@ -49,6 +49,8 @@ TEST_CASE("a capture whose output never moves is no oscillation", "[diagnosis]")
   CHECK(g.verdict == Verdict::no_oscillation);
   CHECK(g.reason.find("does not oscillate") != std::string::npos);
   CHECK(g.suspects.empty());
+  REQUIRE_FALSE(g.next.empty());
+  CHECK(g.next.front().find("a short or a heavy leak across C1") != std::string::npos);
 }
 
 TEST_CASE("a record too short to hold two cycles is inconclusive", "[diagnosis]") {
