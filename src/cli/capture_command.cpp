@@ -59,7 +59,7 @@ int run_capture(const CaptureArgs& a) {
     code = kInputError;
   }
   const std::string text =
-      session_summary(session->status(), ViewContext{a.output, {}}, signals.signal(), closed);
+      session_summary(session->status(), ViewContext{a.output, {}, {}}, signals.signal(), closed);
   std::fwrite(text.data(), 1, text.size(), stdout);
   return code;
 }

@@ -75,6 +75,7 @@ std::vector<std::string> watch_screen(const SessionStatus& s, const ViewContext&
   lines.push_back(fmt::format("  link        {}, disconnects {}", link_text(s), s.disconnects));
   if (!c.record.empty()) lines.push_back(fmt::format("  recording   {}", c.record));
   if (!c.last_event.empty()) lines.push_back(fmt::format("  last event  {}", c.last_event));
+  lines.insert(lines.end(), c.fit_lines.begin(), c.fit_lines.end());
   lines.push_back("  Ctrl-C stops and closes the record.");
   return lines;
 }
@@ -86,7 +87,7 @@ std::string redraw(const std::vector<std::string>& lines) {
   return out;
 }
 
-std::string watch_line(const SessionStatus& s) {
+std::string watch_line(const SessionStatus& s, const ViewContext& view) {
   const WindowReading r = s.reading.value_or(WindowReading{});
   const StreamCounters& c = s.counters;
   std::string errors =
@@ -94,13 +95,18 @@ std::string watch_line(const SessionStatus& s) {
           ? fmt::format("lost {} crc {} skipped {}", c.frames.lost_frames, c.frames.crc_errors,
                         c.frames.skipped_bytes)
           : fmt::format("skipped {} restarts {}", c.text.skipped_lines, c.text.restarts);
+  // Under --design, the fit's verdict line closes each update.
+  std::string fit;
+  for (const std::string& l : view.fit_lines) {
+    if (l.find("verdict") != std::string::npos) fit = "  " + l.substr(l.find_first_not_of(' '));
+  }
   return fmt::format(
-      "{:.1f} s  f {}  duty {}  cap {}  samples {}  gaps {}  {}  link {}\n", s.elapsed_s,
+      "{:.1f} s  f {}  duty {}  cap {}  samples {}  gaps {}  {}  link {}{}\n", s.elapsed_s,
       r.cycles ? format_eng(r.frequency_Hz, "Hz") : "-", r.cycles ? format_percent(r.duty) : "-",
       r.cycles && !std::isnan(r.cap_min_V)
           ? fmt::format("{}..{}", format_eng(r.cap_min_V, "V"), format_eng(r.cap_max_V, "V"))
           : "-",
-      s.samples, s.gaps, errors, s.connected ? "up" : "down");
+      s.samples, s.gaps, errors, s.connected ? "up" : "down", fit);
 }
 
 std::string session_summary(const SessionStatus& s, const ViewContext& c, int stop_signal,

@@ -13,6 +13,8 @@
 #include "src/cli/commands.h"
 #include "src/cli/serial_options.h"
 #include "src/cli/serial_view.h"
+#include "src/cli/watch_fit.h"
+#include "src/core/design_file.h"
 #include "src/core/input_error.h"
 
 namespace benchtau::cli {
@@ -24,6 +26,7 @@ struct WatchArgs {
   bool force = false;
   double window_s = 2.0;
   NodeRequest nodes;
+  std::string design;
 };
 
 void put(const std::string& text) {
@@ -34,10 +37,12 @@ void put(const std::string& text) {
 int run_watch(const WatchArgs& a) {
   const StopSignals signals;
   std::optional<RecordWriter> record;
-  ViewContext view{a.record, {}};
+  ViewContext view{a.record, {}, {}};
   const bool tty = ::isatty(STDOUT_FILENO) == 1;
   std::optional<LiveSession> session;
+  std::optional<LiveFit> live_fit;
   try {
+    if (!a.design.empty()) live_fit.emplace(read_design_file(a.design), a.nodes);
     const PortSettings settings = port_settings(a.serial);
     session.emplace(session_options(a.serial),
                     [settings](const std::string& p) { return open_port(p, settings); });
@@ -51,8 +56,14 @@ int run_watch(const WatchArgs& a) {
   session->set_window(&window);
   if (record) session->set_record(&*record);
   // Both callbacks run one at a time (the session serialises them).
-  session->on_status(
-      [&](const SessionStatus& s) { put(tty ? redraw(watch_screen(s, view)) : watch_line(s)); });
+  session->on_status([&](const SessionStatus& s) {
+    // The fit runs here, on the view's own thread, about once a second.
+    if (live_fit) {
+      live_fit->update(window.capture(), s.elapsed_s);
+      view.fit_lines = live_fit->lines();
+    }
+    put(tty ? redraw(watch_screen(s, view)) : watch_line(s, view));
+  });
   session->on_event([&](const std::string& m) {
     view.last_event = m;
     if (!tty) fmt::print(stderr, "benchtau: {}\n", m);
@@ -100,6 +111,9 @@ void add_watch_command(CLI::App& app, int& exit_code) {
   cmd->add_option("--out", args->nodes.out, "output-pin channel: ch1, ch2... (default: guessed)");
   cmd->add_option("--cap", args->nodes.cap, "capacitor-node channel");
   cmd->add_option("--ctl", args->nodes.ctl, "control-pin channel");
+  cmd->add_option("--design", args->design,
+                  "design file (TOML): fit the window to it about once a second and show each "
+                  "part's value, sigma and out-of-spec mark");
   cmd->callback([args, &exit_code] { exit_code = run_watch(*args); });
 }
 

@@ -3,6 +3,7 @@
 #include <catch2/catch.hpp>
 
 #include <cmath>
+#include <fstream>
 #include <thread>
 
 #include "serial_test_support.h"
@@ -29,8 +30,8 @@ Result run_benchtau(const std::vector<std::string>& args) {
 
 // The astable of R1 10k, R2 47k, C 100n on 9 V (out, cap) as 12-bit counts
 // behind a 3:1 divider with a 5 V reference, rate_Hz samples a second.
-std::vector<std::uint16_t> astable_counts(double rate_Hz, double seconds) {
-  const AstableWave w = two_resistor_astable(9.0, 10e3, 47e3, 100e-9);
+std::vector<std::uint16_t> astable_counts(double rate_Hz, double seconds, double c_F = 100e-9) {
+  const AstableWave w = two_resistor_astable(9.0, 10e3, 47e3, c_F);
   SynthOptions o;
   o.rate_Hz = rate_Hz;
   o.duration_s = seconds;
@@ -120,6 +121,37 @@ TEST_CASE(
   CHECK(m.out.find("  high time        3.95 ms") != std::string::npos);
   CHECK(m.out.find("  low time         3.26 ms") != std::string::npos);
   CHECK(m.out.find("  period           7.21 ms") != std::string::npos);
+}
+
+TEST_CASE("cli: watch --design fits the window live and marks the part out of spec") {
+  // The same board with its capacitor at 62 nF against the design's 100 nF +/- 5 %.
+  const fs::path design = scratch("watch-design.toml"), out = scratch("watch-fit-out.txt"),
+                 err = scratch("watch-fit-err.txt");
+  {
+    std::ofstream f(design);
+    f << "name = \"watch test board\"\nsupply_V = 9.0\nfamily = \"bipolar\"\n"
+         "[circuit]\nkind = \"astable-two-resistor\"\n[parts]\n"
+         "R1 = { value = \"10k\", tolerance = \"1%\", role = \"upper\" }\n"
+         "R2 = { value = \"47k\", tolerance = \"1%\", role = \"lower\" }\n"
+         "C1 = { value = \"100n\", tolerance = \"5%\", kind = \"film\", role = \"timing-cap\" }\n";
+  }
+  PtyPair pty;
+  const pid_t child = spawn_benchtau({"watch", "--port", pty.slave_path, "--rate", "20k", "--bits",
+                                      "12", "--divider", "3", "--design", design.string()},
+                                     out.string(), err.string());
+  const EncodedFrames f = encode_frames(astable_counts(20e3, 3.0, 62e-9), 2, 16);
+  pty.write(f.bytes);
+  const bool fitted = wait_for(
+      [&] {
+        return slurp(out).find("  verdict     fail: C1 has lost about 38 % of its capacitance") !=
+               std::string::npos;
+      },
+      std::chrono::seconds(20));
+  ::kill(child, SIGINT);
+  CHECK(wait_child(child) == 0);
+  INFO(slurp(out));
+  CHECK(fitted);
+  CHECK(slurp(err).empty());
 }
 
 TEST_CASE("cli: capture rides out an unplugged board and closes cleanly on SIGTERM") {
