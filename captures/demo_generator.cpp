@@ -10,6 +10,7 @@
 #include <memory>
 #include <string>
 
+#include "src/core/simulate.h"
 #include "src/core/synth.h"
 
 using namespace benchtau;
@@ -90,7 +91,17 @@ void mister_dried(const std::string& dir) {
 // board on the capacitor node only, from power-up, as whitespace-separated
 // text with the rate given only in the preamble.
 void blinker_log(const std::string& dir) {
-  const AstableWave w = two_resistor_astable(6.0, 1e3, 68e3, 10e-6);
+  // From the circuit model, as night-light-blinker.toml describes the board: a CMOS timer,
+  // and the ADC board's 1 M input on the capacitor node, which lowers the charging target.
+  Circuit c;
+  c.v.supply_V = 6.0;
+  c.v.family = Family::cmos;
+  c.v.chip = typical_figures(Family::cmos);
+  c.v.upper_ohm = 1e3;
+  c.v.lower_ohm = 68e3;
+  c.v.cap_F = 10e-6;
+  c.v.probe_cap_ohm = 1e6;
+  const AstableWave w = astable_wave(predict_cycle(c));
   SynthOptions o;
   o.rate_Hz = 2e3;
   o.duration_s = 5.0;
