@@ -102,6 +102,14 @@ TEST_CASE("fit: the demo unit with a dried capacitor fails with C1 named first")
   CHECK(s.substr(s.rfind(' ')) == " low\n");
 }
 
+TEST_CASE("fit: the capacitor node alone (the blinker's ADC log) is fitted in cap-only mode") {
+  const Run r = run(
+      fit(demo("night-light-blinker-log.txt") + " --design " + demo("night-light-blinker.toml")));
+  CHECK(r.exit_code == 0);
+  CHECK(r.out.rfind("night-light blinker, prototype 2: pass - ", 0) == 0);
+  CHECK(r.out.find("night-light-blinker.toml; 1 capture, cap-only\n") != std::string::npos);
+}
+
 TEST_CASE("fit: a capacitor that lost capacitance is named, and its value found") {
   const std::string csv = astable_csv("fit-c62n.csv", 9.0, 4.7e3, 22e3, 62e-9);
   const Run r = run(fit(csv + " --design " + design_path("fit-design-1.toml")));
