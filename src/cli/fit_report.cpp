@@ -42,47 +42,15 @@ std::string columns(const std::vector<std::vector<std::string>>& rows,
   return out;
 }
 
-std::string_view verdict_words(Verdict v) {
-  switch (v) {
-    case Verdict::pass:
-      return "pass";
-    case Verdict::fail:
-      return "fail";
-    case Verdict::no_oscillation:
-      return "no oscillation";
-    case Verdict::inconclusive:
-      return "inconclusive";
-  }
-  return "";
+// The words for the table: the JSON names with spaces ("no-oscillation" -> "no oscillation").
+std::string words(std::string_view name) {
+  std::string s(name);
+  std::replace(s.begin(), s.end(), '-', ' ');
+  return s;
 }
-
-std::string_view status_words(PartStatus s) {
-  switch (s) {
-    case PartStatus::in_spec:
-      return "in spec";
-    case PartStatus::low:
-      return "low";
-    case PartStatus::high:
-      return "high";
-    case PartStatus::undetermined:
-      return "undetermined";
-  }
-  return "";
-}
-
-std::string_view kind_words(SuspectKind k) {
-  switch (k) {
-    case SuspectKind::value_low:
-      return "value low";
-    case SuspectKind::value_high:
-      return "value high";
-    case SuspectKind::leakage:
-      return "leakage";
-    case SuspectKind::unexpected_load:
-      return "unexpected load";
-  }
-  return "";
-}
+std::string verdict_words(Verdict v) { return words(verdict_name(v)); }
+std::string status_words(PartStatus s) { return words(part_status_name(s)); }
+std::string kind_words(SuspectKind k) { return words(suspect_kind_name(k)); }
 
 // "+/- 1 %", "+/- 0.5 %"; "-" when the part has no tolerance (a fault outside the parts list).
 std::string tolerance_text(double tolerance) {
