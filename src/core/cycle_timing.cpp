@@ -13,13 +13,22 @@ namespace {
 
 // The branches into one node: conductance g (S) and the sum of v g less the
 // currents drawn (A). The node's Thevenin voltage is i / g, its resistance 1 / g.
+// A branch of zero resistance (an ideal output or switch) holds the node at
+// its voltage outright, as in the model.
 struct Sum {
   double g = 0.0;
   double i = 0.0;
+  bool held = false;
+  double held_V = 0.0;
 
   // A source v behind r; an open branch (kOpen) adds nothing.
   void add(double v, double r) {
     if (!(r < kOpen)) return;
+    if (!(r > 0.0)) {
+      held = true;
+      held_V = v;
+      return;
+    }
     const double gb = 1.0 / r;
     g += gb;
     i += v * gb;
@@ -27,11 +36,16 @@ struct Sum {
   // Node s's Thevenin source, less drop_V, in series with r: s.g / (1 + r s.g)
   // is the branch's conductance, with no division for s's own voltage.
   void add_through(const Sum& s, double r, double drop_V = 0.0) {
+    if (s.held) {
+      add(s.held_V - drop_V, r);
+      return;
+    }
     if (!(s.g > 0.0) || !(r < kOpen)) return;
     const double k = 1.0 / (1.0 + r * s.g);
     g += s.g * k;
     i += (s.i - drop_V * s.g) * k;
   }
+  double v() const { return held ? held_V : i / g; }
 };
 
 // A phase's capacitor-node source: target_V behind r_ohm (kOpen: no path).
@@ -42,6 +56,7 @@ struct Phase {
 };
 
 Phase thevenin(const Sum& n) {
+  if (n.held) return {n.held_V, 0.0, kOpen};  // zero resistance: infinite conductance
   if (!(n.g > 0.0)) return {};
   const double r = 1.0 / n.g;
   return {n.i * r, r, n.g};
@@ -111,7 +126,7 @@ double control_V(const Circuit& c, bool high) {
       n.add_through(free_discharge(v, !high), v.control_ohm);
       break;
   }
-  return n.i / n.g;
+  return n.v();
 }
 
 // The discharge node between R1 and R2, with the switch on or off.

@@ -1,6 +1,7 @@
 // benchtau: the Monte Carlo timing path gives what the circuit model gives, for every wiring.
 #include <catch2/catch.hpp>
 
+#include <algorithm>
 #include <array>
 #include <cmath>
 
@@ -68,23 +69,40 @@ Circuit random_circuit(Xoshiro256& rng, CircuitKind kind, ControlWiring control,
   f.trigger_current_A *= between(rng, 0.0, 3.0);
   f.reset_threshold_V *= between(rng, 0.8, 1.2);
   f.propagation_delay_s *= between(rng, 0.0, 10.0);
+  // A design may give an ideal output or switch: a zero-ohm branch holds its node.
+  if (rng.uniform() < 0.1) f.out_source_ohm = 0.0;
+  if (rng.uniform() < 0.1) f.out_sink_ohm = 0.0;
+  if (rng.uniform() < 0.1) f.discharge_on_ohm = 0.0;
+  if (rng.uniform() < 0.05) c.v.diode_ohm = 0.0;
   return c;
 }
 
-// Equal to 1e-12 relative, or both NaN.
-void check_same(double got, double want) {
+// Equal to within epsilon relative, or both NaN.
+void check_same(double got, double want, double epsilon) {
   if (std::isnan(want)) {
     CHECK(std::isnan(got));
   } else {
-    CHECK(got == Approx(want).epsilon(1e-12).margin(0.0));
+    CHECK(got == Approx(want).epsilon(epsilon).margin(0.0));
   }
+}
+
+// 1e-12, except for a circuit whose threshold margin is under 1 % of its
+// supply: a phase's time is then a logarithm of a ratio over that small
+// margin, which amplifies a rounding of the node voltages (about 1e-16 of the
+// supply) by supply / margin, whichever way the arithmetic is arranged; that
+// with a factor of 100 to spare.
+double tolerance(const Circuit& c, const CyclePrediction& p) {
+  double margin_V = p.high.margin_V;
+  if (c.kind != CircuitKind::monostable) margin_V = std::min(margin_V, p.low.margin_V);
+  const double amplified = 1e-14 * std::max(c.v.supply_V, 1.0) / margin_V;
+  return std::max(1e-12, amplified);
 }
 
 }  // namespace
 
 TEST_CASE("the timing path matches predict_cycle to 1e-12 over random circuits of every wiring") {
   Xoshiro256 rng(4242, 0);
-  std::size_t runs = 0, stops = 0;
+  std::size_t runs = 0, stops = 0, well_conditioned = 0;
   for (CircuitKind kind : kKinds) {
     for (ControlWiring control : kControls) {
       for (ResetWiring reset : kResets) {
@@ -104,13 +122,15 @@ TEST_CASE("the timing path matches predict_cycle to 1e-12 over random circuits o
           }
           ++runs;
           ++wiring_runs;
-          check_same(t.high_s, p.high_s);
-          check_same(t.low_s, p.low_s);
-          check_same(t.period_s, p.period_s);
-          check_same(t.frequency_Hz, p.frequency_Hz);
-          check_same(t.duty, p.duty);
-          check_same(t.cap_max_V, p.cap_max_V);
-          check_same(t.cap_min_V, p.cap_min_V);
+          const double eps = tolerance(c, p);
+          if (eps == 1e-12) ++well_conditioned;
+          check_same(t.high_s, p.high_s, eps);
+          check_same(t.low_s, p.low_s, eps);
+          check_same(t.period_s, p.period_s, eps);
+          check_same(t.frequency_Hz, p.frequency_Hz, eps);
+          check_same(t.duty, p.duty, eps);
+          check_same(t.cap_max_V, p.cap_max_V, eps);
+          check_same(t.cap_min_V, p.cap_min_V, eps);
         }
         // Every wiring the model runs is exercised; feedback from the
         // discharge pin runs only on the output-resistor astable, and a
@@ -130,6 +150,7 @@ TEST_CASE("the timing path matches predict_cycle to 1e-12 over random circuits o
     }
   }
   CHECK(runs > 10000);
+  CHECK(well_conditioned > runs - runs / 20);  // nearly all checked to 1e-12
   CHECK(stops > 5000);
 }
 
