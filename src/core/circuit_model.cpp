@@ -10,9 +10,14 @@
 #include <limits>
 
 #include "src/core/circuit.h"
+#include "src/core/circuit_parts.h"
 
 namespace benchtau {
 namespace {
+
+using circuit_detail::parallel;
+using circuit_detail::present;
+using circuit_detail::timing_parts_present;
 
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
@@ -51,14 +56,6 @@ Source thevenin(const Node& n) {
   if (!(n.g > 0.0)) return {0.0, kOpen};
   return {n.v(), n.r()};
 }
-
-double parallel(double a, double b) {
-  if (!(a < kOpen)) return b;
-  if (!(b < kOpen)) return a;
-  return a * b / (a + b);
-}
-
-bool present(double ohm) { return ohm > 0.0 && ohm < kOpen; }
 
 // The output pin as a source in each phase.
 Source output(const CircuitValues& v, bool high) {
@@ -162,20 +159,6 @@ Source cap_source(const Circuit& c, bool high) {
   n.branch(0.0, v.probe_cap_ohm);
   n.draw(v.leak_A + v.chip.threshold_current_A + v.chip.trigger_current_A);
   return thevenin(n);
-}
-
-bool timing_parts_present(const Circuit& c) {
-  const CircuitValues& v = c.v;
-  if (!(v.cap_F > 0.0) || !std::isfinite(v.cap_F)) return false;
-  switch (c.kind) {
-    case CircuitKind::astable_two_resistor:
-    case CircuitKind::astable_diode_steered:
-      return present(v.upper_ohm) && present(v.lower_ohm);
-    case CircuitKind::astable_output_resistor:
-    case CircuitKind::monostable:
-      return present(v.timing_ohm);
-  }
-  return false;
 }
 
 // Output level at the end of a phase, loaded by what the pin drives.

@@ -8,8 +8,14 @@
 
 #include <cmath>
 
+#include "src/core/circuit_parts.h"
+
 namespace benchtau {
 namespace {
+
+using circuit_detail::parallel;
+using circuit_detail::present;
+using circuit_detail::timing_parts_present;
 
 // The branches into one node: conductance g (S) and the sum of v g less the
 // currents drawn (A). The node's Thevenin voltage is i / g, its resistance 1 / g.
@@ -60,14 +66,6 @@ Phase thevenin(const Sum& n) {
   if (!(n.g > 0.0)) return {};
   const double r = 1.0 / n.g;
   return {n.i * r, r, n.g};
-}
-
-bool present(double ohm) { return ohm > 0.0 && ohm < kOpen; }
-
-double parallel(double a, double b) {
-  if (!(a < kOpen)) return b;
-  if (!(b < kOpen)) return a;
-  return a * b / (a + b);
 }
 
 // exp(-x). The propagation delay is usually a tiny fraction of a time
@@ -172,20 +170,6 @@ Phase cap_phase(const Circuit& c, bool high) {
   n.add(0.0, v.probe_cap_ohm);
   n.i -= v.leak_A + v.chip.threshold_current_A + v.chip.trigger_current_A;
   return thevenin(n);
-}
-
-bool timing_parts_present(const Circuit& c) {
-  const CircuitValues& v = c.v;
-  if (!(v.cap_F > 0.0) || !std::isfinite(v.cap_F)) return false;
-  switch (c.kind) {
-    case CircuitKind::astable_two_resistor:
-    case CircuitKind::astable_diode_steered:
-      return present(v.upper_ohm) && present(v.lower_ohm);
-    case CircuitKind::astable_output_resistor:
-    case CircuitKind::monostable:
-      return present(v.timing_ohm);
-  }
-  return false;
 }
 
 }  // namespace
