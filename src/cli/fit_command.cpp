@@ -70,11 +70,10 @@ NodeMap capture_nodes(const Capture& capture, const Design& design, const NodeRe
     const std::string& flag;
     const CaptureNode& design;
     std::string NodeRequest::*request;
-    std::optional<std::size_t> NodeMap::*map;
   };
-  const Node nodes[] = {{"output pin", flags.out, design.out, &NodeRequest::out, &NodeMap::out},
-                        {"capacitor node", flags.cap, design.cap, &NodeRequest::cap, &NodeMap::cap},
-                        {"control pin", flags.ctl, design.ctl, &NodeRequest::ctl, &NodeMap::ctl}};
+  const Node nodes[] = {{"output pin", flags.out, design.out, &NodeRequest::out},
+                        {"capacitor node", flags.cap, design.cap, &NodeRequest::cap},
+                        {"control pin", flags.ctl, design.ctl, &NodeRequest::ctl}};
   // Most captures hold every column their design names: one pass over the channels then.
   NodeRequest request;
   for (const Node& n : nodes) request.*n.request = n.flag.empty() ? n.design.column : n.flag;
@@ -86,18 +85,12 @@ NodeMap capture_nodes(const Capture& capture, const Design& design, const NodeRe
   std::vector<const Node*> absent;
   for (const Node& n : nodes) {
     if (n.flag.empty() && !n.design.column.empty() && !has_channel(capture, n.design.column)) {
-      request.*n.request = std::string();
+      request.*n.request = "none";
       absent.push_back(&n);
     }
   }
   NodeMap map = map_nodes(capture, request);
   for (const Node* n : absent) {
-    if (const auto k = map.*n->map) {
-      // Drop the guess and the note that told of it.
-      const std::string guess = fmt::format("{}: \"{}\"", n->what, capture.channels[*k].name);
-      std::erase_if(map.notes, [&](const std::string& s) { return s.starts_with(guess); });
-      map.*n->map = std::nullopt;
-    }
     map.notes.push_back(fmt::format("{}: not captured (the design's column \"{}\" is not in it)",
                                     n->what, n->design.column));
   }

@@ -48,9 +48,12 @@ std::string channel_list(const Capture& c) {
   return out;
 }
 
+// "none" (any case) says the node was not captured: it is neither looked up nor guessed.
+bool is_none(const std::string& spec) { return lower(spec) == "none"; }
+
 std::optional<std::size_t> find_requested(const Capture& c, const std::string& spec,
                                           std::string_view option) {
-  if (spec.empty()) return std::nullopt;
+  if (spec.empty() || is_none(spec)) return std::nullopt;
   std::size_t index = 0;
   const auto [ptr, ec] = std::from_chars(spec.data(), spec.data() + spec.size(), index);
   if (ec == std::errc() && ptr == spec.data() + spec.size()) {
@@ -118,20 +121,24 @@ NodeMap map_nodes(const Capture& capture, const NodeRequest& request) {
   map.cap = find_requested(capture, request.cap, "--cap");
   map.ctl = find_requested(capture, request.ctl, "--ctl");
   auto taken = [&](std::size_t k) { return map.out == k || map.cap == k || map.ctl == k; };
+  const bool guess_out = !is_none(request.out), guess_cap = !is_none(request.cap),
+             guess_ctl = !is_none(request.ctl);
 
   // By name first.
   for (std::size_t k = 0; k < capture.channels.size(); ++k) {
     if (taken(k)) continue;
     const std::string base = base_name(capture.channels[k].name);
     const auto& name = capture.channels[k].name;
-    if (!map.out && name_says(base, {"out", "output", "vout", "q", "pin3", "pin 3"})) {
+    if (!map.out && guess_out && name_says(base, {"out", "output", "vout", "q", "pin3", "pin 3"})) {
       map.out = k;
       map.notes.push_back(fmt::format("output pin: \"{}\", from its name", name));
-    } else if (!map.cap && name_says(base, {"cap", "vcap", "timing", "thr", "threshold", "trig",
-                                            "trigger", "pin6", "pin 6", "pin2", "pin 2"})) {
+    } else if (!map.cap && guess_cap &&
+               name_says(base, {"cap", "vcap", "timing", "thr", "threshold", "trig", "trigger",
+                                "pin6", "pin 6", "pin2", "pin 2"})) {
       map.cap = k;
       map.notes.push_back(fmt::format("capacitor node: \"{}\", from its name", name));
-    } else if (!map.ctl && name_says(base, {"ctl", "ctrl", "control", "cv", "pin5", "pin 5"})) {
+    } else if (!map.ctl && guess_ctl &&
+               name_says(base, {"ctl", "ctrl", "control", "cv", "pin5", "pin 5"})) {
       map.ctl = k;
       map.notes.push_back(fmt::format("control pin: \"{}\", from its name", name));
     }
@@ -154,17 +161,17 @@ NodeMap map_nodes(const Capture& capture, const NodeRequest& request) {
     }
     return best;
   };
-  if (!map.out) {
+  if (!map.out && guess_out) {
     if ((map.out = pick(Shape::two_level)))
       map.notes.push_back(fmt::format("output pin: \"{}\", guessed from its shape (two levels)",
                                       capture.channels[*map.out].name));
   }
-  if (!map.cap) {
+  if (!map.cap && guess_cap) {
     if ((map.cap = pick(Shape::sawtooth)))
       map.notes.push_back(fmt::format("capacitor node: \"{}\", guessed from its shape (a sawtooth)",
                                       capture.channels[*map.cap].name));
   }
-  if (!map.ctl && (map.out || map.cap)) {
+  if (!map.ctl && guess_ctl && (map.out || map.cap)) {
     std::optional<std::size_t> best;
     double best_swing = 0.0;
     for (const auto& [k, look] : rest) {
@@ -179,7 +186,7 @@ NodeMap map_nodes(const Capture& capture, const NodeRequest& request) {
                                       capture.channels[*map.ctl].name));
   }
   // A single channel that fits no shape is still worth measuring as an output.
-  if (!map.out && !map.cap && capture.channels.size() == 1) {
+  if (!map.out && !map.cap && guess_out && capture.channels.size() == 1) {
     map.out = 0;
     map.notes.push_back(
         fmt::format("output pin: \"{}\", the only channel", capture.channels[0].name));

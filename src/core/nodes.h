@@ -19,7 +19,8 @@ struct NodeMap {
 
 // What the user asked for: a channel name (as in the header, case-insensitive,
 // with or without its unit) or a 1-based column index among the channels, or
-// empty to let benchtau guess from names and then from the waveforms' shapes.
+// empty to let benchtau guess from names and then from the waveforms' shapes, or "none" for
+// a node that was not captured (never guessed).
 struct NodeRequest {
   std::string out;
   std::string cap;
