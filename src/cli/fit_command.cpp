@@ -15,6 +15,7 @@
 #include "src/cli/commands.h"
 #include "src/cli/fit_changes.h"
 #include "src/cli/fit_report.h"
+#include "src/cli/rate_option.h"
 #include "src/core/design_file.h"
 #include "src/core/engineering.h"
 #include "src/core/input_error.h"
@@ -36,16 +37,7 @@ struct FitArgs {
 
 CsvOptions csv_options(const FitArgs& a) {
   CsvOptions options;
-  if (!a.rate.empty()) {
-    const auto rate = parse_eng(a.rate, "Hz");
-    if (!rate || !(*rate > 0.0)) {
-      throw InputError("--rate", 0, 0,
-                       fmt::format("expected a sample rate such as 1M, 250k or 2.5 MS/s, found "
-                                   "\"{}\"",
-                                   a.rate));
-    }
-    options.rate_Hz = rate;
-  }
+  options.rate_Hz = rate_option(a.rate);
   options.time_column = a.time_column;
   return options;
 }

@@ -7,6 +7,7 @@
 #include "drivers/csv_reader.h"
 #include "src/cli/commands.h"
 #include "src/cli/measure_report.h"
+#include "src/cli/rate_option.h"
 #include "src/core/engineering.h"
 #include "src/core/input_error.h"
 #include "src/core/measure.h"
@@ -28,16 +29,7 @@ struct MeasureArgs {
 int run_measure(const MeasureArgs& a) {
   try {
     CsvOptions options;
-    if (!a.rate.empty()) {
-      const auto rate = parse_eng(a.rate, "Hz");
-      if (!rate || !(*rate > 0.0)) {
-        throw InputError("--rate", 0, 0,
-                         fmt::format("expected a sample rate such as 1M, 250k or 2.5 MS/s, found "
-                                     "\"{}\"",
-                                     a.rate));
-      }
-      options.rate_Hz = rate;
-    }
+    options.rate_Hz = rate_option(a.rate);
     options.time_column = a.time_column;
     CsvResult read = read_csv_file(a.path, options);
     const NodeMap nodes = map_nodes(read.capture, a.nodes);

@@ -1,6 +1,8 @@
 // benchtau: the shared serial options.
 #include "src/cli/serial_options.h"
 
+#include "src/cli/rate_option.h"
+
 #include <fmt/format.h>
 
 #include "src/core/engineering.h"
@@ -67,16 +69,7 @@ PortSettings port_settings(const SerialArgs& a) {
 SessionOptions session_options(const SerialArgs& a) {
   SessionOptions o;
   o.port = a.port;
-  if (!a.rate.empty()) {
-    const auto rate = parse_eng(a.rate, "Hz");
-    if (!rate || !(*rate > 0.0)) {
-      throw InputError("--rate", 0, 0,
-                       fmt::format("expected a sample rate such as 1M, 250k or 2.5 MS/s, found "
-                                   "\"{}\"",
-                                   a.rate));
-    }
-    o.stream.rate_Hz = rate;
-  }
+  o.stream.rate_Hz = rate_option(a.rate);
   o.stream.format = a.format == "text"     ? StreamFormat::text
                     : a.format == "frames" ? StreamFormat::frames
                                            : StreamFormat::detect;
