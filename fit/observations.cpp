@@ -4,6 +4,7 @@
 #include <cmath>
 
 #include "fit/diagnosis.h"
+#include "src/core/stats.h"
 
 namespace benchtau {
 namespace {
@@ -42,19 +43,14 @@ bool phase_pair(const PhaseFit& f, Quantity log_tau, Quantity target, double log
   return true;
 }
 
-double mean_of(const std::vector<Cycle>& cycles, double Cycle::*field, double& sd, std::size_t& n) {
-  double sum = 0.0, sq = 0.0;
-  n = 0;
+// A per-cycle figure over the steady cycles (the start-up cycle left out).
+Stat steady(const std::vector<Cycle>& cycles, double Cycle::*field) {
+  std::vector<double> values;
+  values.reserve(cycles.size());
   for (const Cycle& c : cycles) {
-    if (c.startup || !std::isfinite(c.*field)) continue;
-    sum += c.*field;
-    sq += c.*field * c.*field;
-    ++n;
+    if (!c.startup) values.push_back(c.*field);
   }
-  if (n == 0) return std::nan("");
-  const double m = sum / static_cast<double>(n);
-  sd = n > 1 ? std::sqrt(std::fmax(0.0, (sq - m * sum) / static_cast<double>(n - 1))) : 0.0;
-  return m;
+  return describe(values);
 }
 
 }  // namespace
@@ -184,19 +180,14 @@ CaptureObservations observe(const BoardCapture& bc, double supply_V, bool monost
         single(Quantity::out_low, s.out_low_V, hypot3(quant_V, 0.02, 0.01 * s.out_low_V)));
   }
   if (bc.nodes.ctl) {
-    double sd = 0.0;
-    std::size_t k = 0;
-    const double hi = mean_of(m.cycles, &Cycle::ctl_high_V, sd, k);
-    if (k > 0 && std::isfinite(hi)) {
-      o.blocks.push_back(single(Quantity::ctl_high, hi,
-                                hypot3(sd / std::sqrt(static_cast<double>(k)), quant_V, 0.003)));
-    }
-    const double lo = mean_of(m.cycles, &Cycle::ctl_low_V, sd, k);
-    if (k > 0 && std::isfinite(lo)) {
-      o.blocks.push_back(single(Quantity::ctl_low, lo,
-                                hypot3(sd / std::sqrt(static_cast<double>(k)), quant_V, 0.003)));
-      o.has_ctl = true;
-    }
+    auto add = [&](Quantity q, const Stat& st) {
+      if (st.n == 0) return false;
+      const double se = st.std / std::sqrt(static_cast<double>(st.n));
+      o.blocks.push_back(single(q, st.mean, hypot3(se, quant_V, 0.003)));
+      return true;
+    };
+    add(Quantity::ctl_high, steady(m.cycles, &Cycle::ctl_high_V));
+    if (add(Quantity::ctl_low, steady(m.cycles, &Cycle::ctl_low_V))) o.has_ctl = true;
   }
   return o;
 }
