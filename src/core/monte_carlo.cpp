@@ -65,21 +65,75 @@ void allocate_column(DrawValues& column, std::size_t n) {
   column.resize(n);  // uninitialised: each worker writes its own block
 }
 
+// Without a branch on NaN, so the loops vectorise.
 BlockMoments block_moments(std::span<const double> x) {
   BlockMoments m;
-  double sum = 0.0;
+  double sum = 0.0, count = 0.0;
   for (double v : x) {
-    if (!std::isnan(v)) {
-      sum += v;
-      m.count += 1.0;
+    const bool number = v == v;
+    sum += number ? v : 0.0;
+    count += number ? 1.0 : 0.0;
+  }
+  m.count = count;
+  if (count == 0.0) return m;
+  m.mean = sum / count;
+  double m2 = 0.0;
+  for (double v : x) {
+    const double dv = v - m.mean;
+    m2 += v == v ? dv * dv : 0.0;
+  }
+  m.m2 = m2;
+  return m;
+}
+
+// One draw's outputs the general way: NaN for a draw that stops.
+OutputValues slow_outputs(const Circuit& c, bool try_fast, std::size_t& stopped) {
+  if (try_fast) {
+    if (const std::optional<OutputValues> o = fast_astable_outputs(c)) return *o;
+  }
+  // The times and turnarounds alone: a draw needs nothing else.
+  const CycleTiming t = cycle_timing(c);
+  if (!t.oscillates) ++stopped;
+  return OutputValues{t.high_s, t.low_s,     t.period_s, t.frequency_Hz,
+                      t.duty,   t.cap_max_V, t.cap_min_V};
+}
+
+// Draws [begin, end) a batch of lanes at a time through the batch fast path;
+// a lane the batch declines (it stops, or its delay is long) is drawn again
+// from its stored values and worked out the general way. draw(c, values)
+// draws one board into c, keeping its varied values; the random stream is
+// used in the same order as one draw at a time would.
+template <class Draw>
+void draw_block_batched(const Circuit& nominal, std::span<const Variation> variations, Draw& draw,
+                        OutputSet kept, std::size_t begin, std::size_t end, Draws& d,
+                        std::size_t& stopped) {
+  const std::size_t nv = variations.size();
+  Circuit c = nominal;
+  AstableBatch batch;
+  AstableBatchOutputs out;
+  std::vector<double> drawn(kAstableLanes * nv);
+  for (std::size_t first = begin; first < end; first += kAstableLanes) {
+    const std::size_t lanes = std::min(kAstableLanes, end - first);
+    for (std::size_t i = 0; i < lanes; ++i) {
+      draw(c, std::span(drawn).subspan(i * nv, nv));
+      load_lane(c, batch, i);
+    }
+    batch_outputs(batch, lanes, out);
+    for (std::size_t k = 0; k < kOutputs; ++k) {
+      if (kept[k])
+        std::copy_n(out.value[k].begin(), lanes,
+                    d.values[k].begin() + static_cast<std::ptrdiff_t>(first));
+    }
+    for (std::size_t i = 0; i < lanes; ++i) {
+      if (out.done[i]) continue;
+      Circuit s = nominal;
+      for (std::size_t k = 0; k < nv; ++k) variations[k].apply(s, drawn[i * nv + k]);
+      const OutputValues o = slow_outputs(s, true, stopped);
+      for (std::size_t k = 0; k < kOutputs; ++k) {
+        if (kept[k]) d.values[k][first + i] = o[k];
+      }
     }
   }
-  if (m.count == 0.0) return m;
-  m.mean = sum / m.count;
-  for (double v : x) {
-    if (!std::isnan(v)) m.m2 += (v - m.mean) * (v - m.mean);
-  }
-  return m;
 }
 
 }  // namespace
@@ -97,7 +151,11 @@ Draws monte_carlo_draws(const Circuit& nominal, std::span<const Variation> varia
                         const MonteCarloOptions& options) {
   Draws d;
   const std::size_t n = options.draws;
-  for (DrawValues& v : d.values) allocate_column(v, n);
+  d.draws = n;
+  const OutputSet kept = options.outputs;
+  for (std::size_t k = 0; k < kOutputs; ++k) {
+    if (kept[k]) allocate_column(d.values[k], n);
+  }
   const std::size_t blocks = (n + kBlockDraws - 1) / kBlockDraws;
   d.moments.resize(blocks);
   std::vector<std::size_t> stopped(blocks, 0);
@@ -105,24 +163,29 @@ Draws monte_carlo_draws(const Circuit& nominal, std::span<const Variation> varia
   const Ziggurat& zig = ziggurat();
   parallel_for(blocks, options.threads, [&](std::size_t b) {
     Xoshiro256 rng(options.seed, b);
-    Circuit c = nominal;
     const std::size_t begin = b * kBlockDraws, end = std::min(n, begin + kBlockDraws);
-    for (std::size_t i = begin; i < end; ++i) {
-      for (const Variation& v : variations) {
-        v.apply(c, value_at(v, truncated_normal(rng, zig, kSigmasPerTolerance)));
+    auto draw = [&](Circuit& c, std::span<double> drawn) {
+      for (std::size_t k = 0; k < variations.size(); ++k) {
+        drawn[k] = value_at(variations[k], truncated_normal(rng, zig, kSigmasPerTolerance));
+        variations[k].apply(c, drawn[k]);
       }
-      std::optional<OutputValues> o = fast ? fast_astable_outputs(c) : std::nullopt;
-      if (!o) {
-        // The times and turnarounds alone: a draw needs nothing else.
-        const CycleTiming t = cycle_timing(c);
-        if (!t.oscillates) ++stopped[b];
-        o = OutputValues{t.high_s, t.low_s,     t.period_s, t.frequency_Hz,
-                         t.duty,   t.cap_max_V, t.cap_min_V};  // NaN for a draw that stops
+    };
+    if (fast) {
+      draw_block_batched(nominal, variations, draw, kept, begin, end, d, stopped[b]);
+    } else {
+      Circuit c = nominal;
+      std::vector<double> drawn(variations.size());
+      for (std::size_t i = begin; i < end; ++i) {
+        draw(c, drawn);
+        const OutputValues o = slow_outputs(c, false, stopped[b]);
+        for (std::size_t k = 0; k < kOutputs; ++k) {
+          if (kept[k]) d.values[k][i] = o[k];
+        }
       }
-      for (std::size_t k = 0; k < kOutputs; ++k) d.values[k][i] = (*o)[k];
     }
     for (std::size_t k = 0; k < kOutputs; ++k) {
-      d.moments[b][k] = block_moments(std::span(d.values[k]).subspan(begin, end - begin));
+      if (kept[k])
+        d.moments[b][k] = block_moments(std::span(d.values[k]).subspan(begin, end - begin));
     }
   });
   for (std::size_t s : stopped) d.stopped += s;

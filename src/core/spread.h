@@ -2,6 +2,7 @@
 #pragma once
 
 #include <array>
+#include <bitset>
 #include <cstddef>
 #include <cstdint>
 #include <limits>
@@ -90,10 +91,16 @@ inline constexpr double kSigmasPerTolerance = 3.0;
 inline constexpr std::size_t kBlockDraws = 4096;
 inline constexpr std::array<double, 7> kPercentiles{0.1, 1.0, 5.0, 50.0, 95.0, 99.0, 99.9};
 
+using OutputSet = std::bitset<kOutputs>;  // bit k: Output k
+inline OutputSet only(Output o) { return OutputSet{}.set(static_cast<std::size_t>(o)); }
+
 struct MonteCarloOptions {
   std::size_t draws = 100000;
   std::uint64_t seed = 1;
   unsigned threads = 0;  // 0: one per core
+  // The outputs kept and summarised; the others are not stored, and their
+  // statistics are empty (count 0, NaN). The draws are the same either way.
+  OutputSet outputs = OutputSet{}.set();
 };
 
 // A vector that leaves its doubles uninitialised on resize: every draw's slot
@@ -131,10 +138,11 @@ struct BlockMoments {
 // Every draw's outputs, NaN where that draw does not oscillate, and each
 // block's moments, taken while its values were fresh in the cache.
 struct Draws {
-  std::array<DrawValues, kOutputs> values;
+  std::size_t draws = 0;
+  std::array<DrawValues, kOutputs> values;                  // empty for an output not kept
   std::vector<std::array<BlockMoments, kOutputs>> moments;  // one per block
   std::size_t stopped = 0;
-  std::size_t size() const { return values[0].size(); }
+  std::size_t size() const { return draws; }
 };
 
 Draws monte_carlo_draws(const Circuit& nominal, std::span<const Variation> variations,

@@ -10,7 +10,6 @@
 #include <vector>
 
 #include "src/core/design_file.h"
-#include "src/core/order_statistics.h"
 #include "src/core/spread.h"
 
 namespace {
@@ -71,19 +70,13 @@ C1 = { value = "1u", tolerance = "10%", kind = "film", role = "timing-cap" }
 
 // Times one run of what `statistics` asks for: "all" is the whole Monte Carlo
 // (draws, then mean, std and percentiles of all seven outputs); "period" is
-// the same draws with the statistics of the period (a monostable's pulse)
-// alone, the like-for-like peer of a NumPy run that works out the period only.
-// Returns the statistic's mean, as a check.
-double run_once(const Circuit& c, const std::vector<Variation>& vars, const MonteCarloOptions& o,
+// the same draws with the period (a monostable's pulse) alone kept and
+// summarised, the like-for-like peer of a NumPy run that works out the period
+// only. Returns the statistic's mean, as a check.
+double run_once(const Circuit& c, const std::vector<Variation>& vars, MonteCarloOptions o,
                 Output shown, bool period_only) {
-  if (!period_only) return monte_carlo(c, vars, o).outputs[static_cast<std::size_t>(shown)].mean;
-  Draws d = monte_carlo_draws(c, vars, o);
-  const auto k = static_cast<std::size_t>(shown);
-  BlockMoments m;
-  for (const auto& block : d.moments) m.merge(block[k]);
-  std::array<double, kPercentiles.size()> percentile{};
-  percentiles_of(d.values[k], kPercentiles, percentile, static_cast<std::size_t>(m.count));
-  return m.mean;
+  if (period_only) o.outputs = only(shown);
+  return monte_carlo(c, vars, o).outputs[static_cast<std::size_t>(shown)].mean;
 }
 
 }  // namespace

@@ -107,6 +107,31 @@ TEST_CASE("Monte Carlo results are identical for a seed whatever the thread coun
   }
 }
 
+TEST_CASE("a Monte Carlo of the period alone gives the full run's period, and nothing else") {
+  for (const Design& d : {classic("5%", "20%"), output_resistor()}) {
+    const Circuit c = nominal_circuit(d);
+    const std::vector<Variation> vars = design_variations(d, true);
+    MonteCarloOptions o;
+    o.draws = 2 * kBlockDraws + 77;
+    o.seed = 3;
+    const MonteCarlo all = monte_carlo(c, vars, o);
+    o.outputs = only(Output::period_s);
+    const Draws draws = monte_carlo_draws(c, vars, o);
+    CHECK(draws.size() == o.draws);
+    CHECK(draws.values[0].empty());
+    const MonteCarlo period = monte_carlo(c, vars, o);
+    CHECK(period.draws == all.draws);
+    const auto k = static_cast<std::size_t>(Output::period_s);
+    CHECK(period.outputs[k].count == all.outputs[k].count);
+    CHECK(period.outputs[k].mean == all.outputs[k].mean);
+    CHECK(period.outputs[k].std == all.outputs[k].std);
+    CHECK(period.outputs[k].percentile == all.outputs[k].percentile);
+    CHECK(period.outputs[0].count == 0);
+    CHECK(std::isnan(period.outputs[0].mean));
+    CHECK(std::isnan(period.outputs[0].percentile[3]));
+  }
+}
+
 TEST_CASE("every Monte Carlo draw lies within the worst-case corners") {
   for (const bool chip_spread : {false, true}) {
     for (const Design& d : {classic("5%", "20%"), output_resistor()}) {
