@@ -6,7 +6,7 @@ one and two threads, and the same Monte Carlo of the classic two-resistor
 astable written as vectorised NumPy over its closed form
 (t_high = ln 2 (R1 + R2) C, t_low = ln 2 R2 C), percentiles included. Then the
 like-for-like pair with the period's statistics alone: NumPy working out the
-period only, and benchtau's same draws with only the period summarised. Best
+period only, and benchtau's same draws with only the period kept and summarised. Best
 of several runs each; one table.
 
 Usage: python3 tests/bench/mc_bench.py --program build/tests/bench/benchtau_mc_bench
@@ -99,7 +99,7 @@ def main():
     print(f"NumPy is the classic astable's closed form, vectorised (mean period "
           f"{np_mean * 1e3:.4f} ms; benchtau's {rows[0][3] * 1e3:.4f} ms has the chip's typical "
           f"figures). The last row has the period's statistics alone on both sides;\nbenchtau "
-          f"still works out all seven outputs of each draw there.")
+          f"works out all seven outputs of each draw there and keeps the period only.")
 
 
 if __name__ == "__main__":
