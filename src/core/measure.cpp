@@ -5,7 +5,9 @@
 
 #include <algorithm>
 #include <cmath>
+#include <optional>
 #include <string_view>
+#include <thread>
 
 #include "src/core/engineering.h"
 #include "src/core/input_error.h"
@@ -99,7 +101,10 @@ std::string node_name(const Capture& c, std::optional<std::size_t> k) {
   return k ? fmt::format("\"{}\"", c.channels[*k].name) : std::string("-");
 }
 
-void check_channel(const Capture& c, std::size_t k, bool smooth_node, Findings& findings) {
+// smooth_spread is the channel's spread when it is the capacitor node, whose
+// sawtooth never rests; null for the others.
+void check_channel(const Capture& c, std::size_t k, const ChannelSpread* smooth_spread,
+                   Findings& findings) {
   const Channel& ch = c.channels[k];
   if (ch.missing > 0) {
     add(findings, "missing_samples", Severity::warning,
@@ -109,8 +114,8 @@ void check_channel(const Capture& c, std::size_t k, bool smooth_node, Findings& 
   }
   // The output pin is flat at its levels by nature, and so is a control pin
   // fed back from the output; only the capacitor's sawtooth never rests.
-  if (!smooth_node) return;
-  const ChannelSpread s = channel_spread(ch.values);
+  if (smooth_spread == nullptr) return;
+  const ChannelSpread& s = *smooth_spread;
   // Clipping flattens every cycle that crosses the rail; one flat stretch is
   // something else (the supply still off at the start of the record).
   for (const auto& [fraction, runs, level, which] :
@@ -203,15 +208,34 @@ Measurement measure(const Capture& capture, const NodeMap& map, const MeasureOpt
   const auto out = values(map.out), cap = values(map.cap), ctl = values(map.ctl);
   m.summary.out_low_V = m.summary.out_high_V = kNaN;
 
+  // The output's spread and levels and the capacitor's spread are a few
+  // passes each over the whole record: on a long one, side by side.
+  std::optional<ChannelSpread> out_spread, cap_spread;
+  std::optional<TwoLevels> out_levels;
+  auto out_side = [&] {
+    out_spread = channel_spread(out);
+    out_levels = two_levels(out, *out_spread);
+  };
+  auto cap_side = [&] { cap_spread = channel_spread(cap); };
+  constexpr std::size_t kSideBySide = 200000;
+  if (map.out && map.cap && out.size() + cap.size() >= kSideBySide &&
+      std::thread::hardware_concurrency() > 1) {
+    std::jthread cap_thread(cap_side);
+    out_side();
+  } else {
+    if (map.out) out_side();
+    if (map.cap) cap_side();
+  }
+
   for (auto k : {map.out, map.cap, map.ctl})
-    if (k) check_channel(capture, *k, k == map.cap, m.findings);
+    if (k) check_channel(capture, *k, k == map.cap ? &*cap_spread : nullptr, m.findings);
 
   EdgeScan scan;
   bool have_edges = false;
   bool try_cap = out.empty();
   if (!out.empty()) {
-    const ChannelSpread spread = channel_spread(out);
-    const TwoLevels levels = two_levels(out, spread);
+    const ChannelSpread& spread = *out_spread;
+    const TwoLevels& levels = *out_levels;
     if (!(spread.p_high_V - spread.p_low_V > kFlatOutput_V)) {
       const bool low = spread.median_V < kLowLevel_V;
       add(m.findings, low ? "stuck_low" : "stuck_high", Severity::problem,
@@ -238,7 +262,7 @@ Measurement measure(const Capture& capture, const NodeMap& map, const MeasureOpt
     }
   }
   if (try_cap && !cap.empty()) {
-    const ChannelSpread spread = channel_spread(cap);
+    const ChannelSpread& spread = *cap_spread;
     const double rough = roughness(cap, spread);
     if (!(spread.p_high_V - spread.p_low_V > kFlatCap_V)) {
       add(m.findings, "stuck_cap", Severity::problem,
