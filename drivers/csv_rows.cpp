@@ -101,11 +101,14 @@ ParsedRows parse_rows(const ByteSource& source, std::size_t data_begin, std::siz
   std::vector<std::size_t> first_lines(parts), base(parts);
   std::size_t capacity = 0;
   std::size_t line = first_line;
+  // Every part but the last ends just after a line end, so it holds at most
+  // one row a newline; the last may end in a line without one. With no room
+  // to spare between parts, rows that fill their lines need no moving after.
   for (unsigned k = 0; k < parts; ++k) {
     first_lines[k] = line;
     base[k] = capacity;
     line += newlines[k];
-    capacity += newlines[k] + 1;
+    capacity += newlines[k] + (k + 1 == parts ? 1 : 0);
   }
 
   ParsedRows out;
@@ -123,7 +126,7 @@ ParsedRows parse_rows(const ByteSource& source, std::size_t data_begin, std::siz
   std::vector<PartTarget> targets(parts);
   for (unsigned k = 0; k < parts; ++k) {
     for (auto& col : out.columns) pointers[k].push_back(col.data() + base[k]);
-    targets[k] = {pointers[k], newlines[k] + 1};
+    targets[k] = {pointers[k], newlines[k] + (k + 1 == parts ? 1 : 0)};
   }
   std::atomic<std::size_t> stop_line{std::numeric_limits<std::size_t>::max()};
   run_parts(parts, workers, [&](unsigned k) {
