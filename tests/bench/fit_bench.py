@@ -64,29 +64,46 @@ def generate(path, rows):
     os.replace(tmp, path)
 
 
+# Peak RSS from wait4 counts what a child was forked with: a child of this
+# script (NumPy and pandas loaded) would start near 300 MB. So each command runs
+# under a small fresh interpreter that forks it and reports the child's own
+# figures; its floor is that interpreter's size, about 10 MB.
+LAUNCHER = """
+import os, sys, time
+start = time.perf_counter()
+pid = os.fork()
+if pid == 0:
+    os.execv(sys.argv[2], sys.argv[2:])
+_, status, usage = os.wait4(pid, 0)
+wall = time.perf_counter() - start
+with open(sys.argv[1], "w") as f:
+    f.write(f"{os.waitstatus_to_exitcode(status)} {wall} {usage.ru_utime + usage.ru_stime} "
+            f"{usage.ru_maxrss}")
+"""
+
+
 def timed(cmd):
     """Runs cmd to the end: its key=value output, wall time, CPU time and peak RSS (from
-    wait4, so each run's own figures)."""
+    wait4 in the launcher, so each run's own figures)."""
     import tempfile
 
-    with tempfile.TemporaryFile("w+") as out, tempfile.TemporaryFile("w+") as err:
-        start = time.perf_counter()
-        proc = subprocess.Popen(cmd, stdout=out, stderr=err, text=True)
-        _, status, usage = os.wait4(proc.pid, 0)
-        wall = time.perf_counter() - start
-        proc.returncode = os.waitstatus_to_exitcode(status)
+    with tempfile.TemporaryFile("w+") as out, tempfile.TemporaryFile("w+") as err, \
+            tempfile.NamedTemporaryFile("r") as figures:
+        proc = subprocess.run([sys.executable, "-c", LAUNCHER, figures.name] + cmd, stdout=out,
+                              stderr=err, text=True)
         out.seek(0)
         err.seek(0)
         text = out.read()
-        if proc.returncode != 0:
-            sys.exit(f"fit_bench: {' '.join(cmd)} failed ({proc.returncode}):\n{err.read()}")
+        code, wall, cpu, maxrss_kib = figures.read().split()
+        if proc.returncode != 0 or int(code) != 0:
+            sys.exit(f"fit_bench: {' '.join(cmd)} failed ({code}):\n{err.read()}")
     values = {}
     for line in text.splitlines():
         key, sep, value = line.partition("=")
         if sep:
             values[key.strip()] = value.strip()
-    return {"wall": wall, "values": values, "cpu": usage.ru_utime + usage.ru_stime,
-            "maxrss": usage.ru_maxrss * 1024}  # KiB on Linux
+    return {"wall": float(wall), "values": values, "cpu": float(cpu),
+            "maxrss": int(maxrss_kib) * 1024}  # KiB on Linux
 
 
 def best_of(runs, fn, key):
