@@ -164,7 +164,14 @@ ParsedRows parse_rows(const ByteSource& source, std::size_t data_begin, std::siz
   }
   if (first_error != nullptr) throw *first_error;
   out.watch_fail_line = watch_fail;
-  out.unterminated_line = results.back().unterminated_line;
+  // The file's last line lies in the last part with any bytes: a long one
+  // can leave the parts after it empty.
+  for (unsigned k = parts; k-- > 0;) {
+    if (bounds[k] < bounds[k + 1]) {
+      out.unterminated_line = results[k].unterminated_line;
+      break;
+    }
+  }
 
   // Close the gaps that blank and comment lines left at each part's end.
   std::size_t rows = 0;

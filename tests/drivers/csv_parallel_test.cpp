@@ -191,3 +191,20 @@ TEST_CASE("csv parallel: a headerless first column that stops rising is found ac
     }
   }
 }
+
+TEST_CASE("csv parallel: a long last line with no line end is reported whatever the threads") {
+  // The last line is longer than a part, so the parts after the one that
+  // holds its start are empty: the note must still come from that one.
+  std::string text = big_capture(60000);
+  const std::size_t lines = static_cast<std::size_t>(std::count(text.begin(), text.end(), '\n'));
+  text += "60000," + std::string(text.size(), '7');
+  const std::string note = "Line " + std::to_string(lines + 1) +
+                           " has no line end, as if the file were cut short, so it was not read "
+                           "(a row cut short can read as a wrong number).";
+  for (unsigned threads : {1u, 2u, 7u}) {
+    CAPTURE(threads);
+    const auto r = benchtau::read_csv_text(text, "scope.csv", with_threads(threads));
+    CHECK(r.capture.samples() == 60000);
+    CHECK(std::find(r.notes.begin(), r.notes.end(), note) != r.notes.end());
+  }
+}
