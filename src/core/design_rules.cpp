@@ -309,7 +309,7 @@ Findings check_design(const Design& design, const Circuit& circuit,
                                 ? prediction.high.margin_V
                                 : std::min(prediction.high.margin_V, prediction.low.margin_V);
     add(out, "marginal", Severity::warning,
-        fmt::format("marginal: a threshold margin of {} is within the part-to-part spread of the "
+        fmt::format("a threshold margin of {} is within the part-to-part spread of the "
                     "{}; the same design may run on one timer and stop on another",
                     V(margin_V), prediction.deciding_figure));
   }

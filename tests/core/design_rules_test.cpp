@@ -194,7 +194,7 @@ TEST_CASE("a marginal circuit names the deciding figure") {
              "C1 = { value = \"100n\", kind = \"film\", role = \"timing-cap\" }"));
   CHECK(severity(f, "marginal") == Severity::warning);
   CHECK(message(f, "marginal") ==
-        "marginal: a threshold margin of 304 mV is within the part-to-part spread of the output "
+        "a threshold margin of 304 mV is within the part-to-part spread of the output "
         "high level; the same design may run on one timer and stop on another");
 }
 
