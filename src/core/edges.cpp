@@ -5,6 +5,7 @@
 #include <array>
 #include <cmath>
 #include <optional>
+#include <thread>
 
 namespace benchtau {
 namespace {
@@ -33,21 +34,31 @@ std::optional<Quadratic> fit_poly(const TimeBase& time, std::span<const double> 
   q.t_ref = t_ref;
   q.degree = n >= 3 ? 2 : 1;
   const int m = q.degree + 1;
-  double scale = 0.0;
-  for (std::size_t i = first; i < last; ++i) {
-    if (std::isnan(v[i])) return std::nullopt;
-    scale = std::max(scale, std::fabs(time.at(i) - t_ref));
-  }
+  // Time rises, so the farthest sample from t_ref is an end one (and were it
+  // not, the scale only conditions the sums: the curve is the same).
+  const double scale =
+      std::max(std::fabs(time.at(first) - t_ref), std::fabs(time.at(last - 1) - t_ref));
   q.scale = scale > 0.0 ? scale : 1.0;
-  std::array<std::array<double, 4>, 3> A{};
+  const double per_scale = 1.0 / q.scale;
+  // The power sums of x and of x^k v in one pass; a NaN sample makes them NaN.
+  double s1 = 0, s2 = 0, s3 = 0, s4 = 0, t0 = 0, t1 = 0, t2 = 0;
+  const bool uniform = time.uniform();
   for (std::size_t i = first; i < last; ++i) {
-    const double x = (time.at(i) - t_ref) / q.scale;
-    const std::array<double, 3> p{1.0, x, x * x};
-    for (int r = 0; r < m; ++r) {
-      for (int c = 0; c < m; ++c) A[r][c] += p[r] * p[c];
-      A[r][3] += p[r] * v[i];
-    }
+    const double t = uniform ? time.t0_s + static_cast<double>(i) * time.dt_s : time.t_s[i];
+    const double x = (t - t_ref) * per_scale, x2 = x * x, y = v[i];
+    s1 += x;
+    s2 += x2;
+    s3 += x2 * x;
+    s4 += x2 * x2;
+    t0 += y;
+    t1 += x * y;
+    t2 += x2 * y;
   }
+  if (std::isnan(t0 + t1 + t2)) return std::nullopt;
+  std::array<std::array<double, 4>, 3> A{};
+  A[0] = {static_cast<double>(n), s1, s2, t0};
+  A[1] = {s1, s2, s3, t1};
+  A[2] = {s2, s3, s4, t2};
   for (int col = 0; col < m; ++col) {
     int pivot = col;
     for (int r = col + 1; r < m; ++r)
@@ -333,9 +344,12 @@ EdgeScan sawtooth_edges(const TimeBase& time, std::span<const double> cap_V,
   return scan;
 }
 
-void refine_with_cap(const TimeBase& time, std::span<const double> cap_V,
-                     std::vector<Edge>& edges) {
-  for (std::size_t k = 0; k < edges.size(); ++k) {
+namespace {
+
+// Edges [begin, end) of edges, each from the curves either side of it.
+void refine_edges(const TimeBase& time, std::span<const double> cap_V, std::vector<Edge>& edges,
+                  std::size_t begin, std::size_t end) {
+  for (std::size_t k = begin; k < end; ++k) {
     Edge& e = edges[k];
     const std::size_t j = e.index;  // first sample after the output crossed
     if (j < 2 || j + 1 >= cap_V.size()) continue;
@@ -352,6 +366,22 @@ void refine_with_cap(const TimeBase& time, std::span<const double> cap_V,
       e.cap_V = meet.left->at(e.t_s);
     }
   }
+}
+
+}  // namespace
+
+void refine_with_cap(const TimeBase& time, std::span<const double> cap_V,
+                     std::vector<Edge>& edges) {
+  // Each edge reads its neighbours' sample indices, which no edge changes:
+  // on a long record, two halves of the edges side by side.
+  constexpr std::size_t kSideBySide = 4096;
+  if (edges.size() >= kSideBySide && std::thread::hardware_concurrency() > 1) {
+    const std::size_t half = edges.size() / 2;
+    std::jthread other([&] { refine_edges(time, cap_V, edges, half, edges.size()); });
+    refine_edges(time, cap_V, edges, 0, half);
+    return;
+  }
+  refine_edges(time, cap_V, edges, 0, edges.size());
 }
 
 }  // namespace benchtau
