@@ -3,10 +3,14 @@
 
 #include <algorithm>
 #include <cmath>
+#include <memory>
 #include <stdexcept>
+#include <thread>
 
 namespace benchtau {
 namespace {
+
+constexpr std::size_t kSideBySide = 200000;  // samples
 
 // The first sample strictly after t_s, starting the search at the edge's own index (which
 // the edge finders set to the first sample after the edge, within a sample of it).
@@ -28,7 +32,6 @@ SegmentSamples segment_samples(const TimeBase& time, std::span<const double> cap
     throw std::invalid_argument("segment_samples: the sample interval must be positive");
 
   SegmentSamples out;
-  std::size_t total_used = 0;
   std::size_t covered = 0;
   for (std::size_t k = 0; k + 1 < edges.size(); ++k) {
     const Edge& a = edges[k];
@@ -50,43 +53,62 @@ SegmentSamples segment_samples(const TimeBase& time, std::span<const double> cap
     w.first = std::min(s0 + skip_after, s1);
     w.end = std::max(w.first, s1 >= rule.skip_before ? s1 - rule.skip_before : 0);
     w.excluded = len - (w.end - w.first);
-    for (std::size_t i = w.first; i < w.end; ++i) {
-      if (std::isfinite(cap_V[i]))
-        ++w.used;
-      else
-        ++w.missing;
-    }
-    total_used += w.used;
     out.windows.push_back(w);
   }
   out.outside = n - std::min(n, covered);
 
-  out.cap_V = cap_V;
-  out.x_s.resize(total_used);
-  const bool gaps = std::any_of(out.windows.begin(), out.windows.end(),
-                                [](const SegmentWindow& w) { return w.missing > 0; });
-  if (gaps) out.gap_y_V = std::make_unique_for_overwrite<double[]>(total_used);
-  std::size_t offset = 0;
-  for (SegmentWindow& w : out.windows) {
-    w.offset = offset;
-    double* x = out.x_s.data() + offset;
-    if (w.missing == 0) {
-      if (time.uniform()) {
-        for (std::size_t i = w.first; i < w.end; ++i) *x++ = time.at(i) - w.start_s;
-      } else {
-        const double* t = time.t_s.data();
-        for (std::size_t i = w.first; i < w.end; ++i) *x++ = t[i] - w.start_s;
-      }
+  // Counting each window's samples and gathering them are passes over the
+  // whole record: on a long one, two halves of the windows side by side.
+  auto halves = [&](auto&& job) {
+    const std::size_t count = out.windows.size(), half = count / 2;
+    if (n >= kSideBySide && std::thread::hardware_concurrency() > 1) {
+      std::jthread other([&] { job(half, count); });
+      job(0, half);
     } else {
-      double* y = out.gap_y_V.get() + offset;
-      for (std::size_t i = w.first; i < w.end; ++i) {
-        if (!std::isfinite(cap_V[i])) continue;
-        *x++ = time.at(i) - w.start_s;
-        *y++ = cap_V[i];
+      job(0, count);
+    }
+  };
+  halves([&](std::size_t begin, std::size_t end) {
+    for (std::size_t k = begin; k < end; ++k) {
+      SegmentWindow& w = out.windows[k];
+      std::size_t used = 0;
+      for (std::size_t i = w.first; i < w.end; ++i) used += std::isfinite(cap_V[i]) ? 1 : 0;
+      w.used = used;
+      w.missing = (w.end - w.first) - used;
+    }
+  });
+  std::size_t total_used = 0;
+  bool gaps = false;
+  for (SegmentWindow& w : out.windows) {
+    w.offset = total_used;
+    total_used += w.used;
+    gaps |= w.missing > 0;
+  }
+
+  out.cap_V = cap_V;
+  out.x_s = std::make_unique_for_overwrite<double[]>(total_used);
+  if (gaps) out.gap_y_V = std::make_unique_for_overwrite<double[]>(total_used);
+  halves([&](std::size_t begin, std::size_t end) {
+    for (std::size_t k = begin; k < end; ++k) {
+      const SegmentWindow& w = out.windows[k];
+      double* x = out.x_s.get() + w.offset;
+      if (w.missing == 0) {
+        if (time.uniform()) {
+          for (std::size_t i = w.first; i < w.end; ++i) *x++ = time.at(i) - w.start_s;
+        } else {
+          const double* t = time.t_s.data();
+          for (std::size_t i = w.first; i < w.end; ++i) *x++ = t[i] - w.start_s;
+        }
+      } else {
+        double* y = out.gap_y_V.get() + w.offset;
+        for (std::size_t i = w.first; i < w.end; ++i) {
+          if (!std::isfinite(cap_V[i])) continue;
+          *x++ = time.at(i) - w.start_s;
+          *y++ = cap_V[i];
+        }
       }
     }
-    offset += w.used;
-  }
+  });
   return out;
 }
 

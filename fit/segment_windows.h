@@ -52,7 +52,7 @@ struct SegmentWindow {
 
 struct SegmentSamples {
   std::vector<SegmentWindow> windows;
-  std::vector<double> x_s;  // time since the window's start edge
+  std::unique_ptr<double[]> x_s;  // time since the window's start edge, at each window's offset
   // Capacitor voltages: a window without a NaN reads them in place from the channel (cap_V,
   // which must outlive this); only a window with gaps has its values gathered, into gap_y_V
   // at its offset. The rest of gap_y_V is never written, so its pages never become resident.
@@ -61,7 +61,7 @@ struct SegmentSamples {
   std::size_t outside = 0;  // samples before the first or after the last whole segment
 
   std::span<const double> x(const SegmentWindow& w) const {
-    return std::span<const double>(x_s).subspan(w.offset, w.used);
+    return std::span<const double>(x_s.get() + w.offset, w.used);
   }
   std::span<const double> y(const SegmentWindow& w) const {
     if (w.missing == 0) return cap_V.subspan(w.first, w.used);
