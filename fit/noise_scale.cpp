@@ -11,7 +11,10 @@ namespace {
 
 // 1 / Phi^-1(3/4): the MAD of a Gaussian is 0.6745 sigma (standard result).
 constexpr double kMadToSigma = 1.4826;
-constexpr std::size_t kMaxDifferences = 200000;
+// Differences read, spread over the record: 50 000 find an ADC's step (a cluster of
+// 250 equal ones) and give a first-pass MAD sigma good to about 0.5 %, while sorting them
+// stays a millisecond or two (200 000 cost a sixth of a million-sample fit).
+constexpr std::size_t kMaxDifferences = 50000;
 
 double median_in_place(std::span<double> v) {
   const std::size_t mid = v.size() / 2;

@@ -10,7 +10,7 @@ namespace benchtau {
 // The ADC's step, found from the data: the smallest nonzero difference between successive
 // samples that is common (at least 0.5 % of the nonzero differences, within 1e-6 of itself)
 // and of which nearly all differences (95 %) are whole multiples. 0 when there is none, as
-// for unquantised data. Reads at most about 200 000 differences, spread over the record.
+// for unquantised data. Reads at most about 50 000 differences, spread over the record.
 double quantisation_step_V(std::span<const double> values_V);
 
 // 1.4826 * the median absolute deviation from the median: the standard deviation for
