@@ -6,6 +6,7 @@
 #include <exception>
 #include <limits>
 #include <memory>
+#include <optional>
 #include <stdexcept>
 #include <thread>
 #include <vector>
@@ -26,8 +27,14 @@ using detail::SolveSettings;
 // Fits the windows listed on their own, each from its previous fit when that converged.
 // Segments are independent problems, so they are dealt round-robin to the threads (each slot
 // of raws is written by one thread only).
+// A segment not fitted before starts from its phase's seed when there is one.
+struct PhaseSeed {
+  double log_tau = 0.0, vinf_V = 0.0;
+};
+using PhaseSeeds = std::array<std::optional<PhaseSeed>, 2>;  // charging, discharging
+
 void fit_each(const SegmentSamples& s, std::span<const std::size_t> which, const SolveSettings& st,
-              std::vector<RawSegment>& raws, int threads) {
+              std::vector<RawSegment>& raws, int threads, const PhaseSeeds& seeds = {}) {
   const std::size_t n = which.size();
   // A handful of segments is not worth a thread.
   const std::size_t step = n < 8 ? 1 : static_cast<std::size_t>(std::max(1, threads));
@@ -35,8 +42,17 @@ void fit_each(const SegmentSamples& s, std::span<const std::size_t> which, const
     for (std::size_t j = from; j < n; j += step) {
       const std::size_t k = which[j];
       const SegmentWindow& w = s.windows[k];
-      const std::array<double, 3> start = raws[k].params;
-      raws[k] = detail::solve_segment(s.x(w), s.y(w), st, raws[k].converged ? &start : nullptr);
+      std::array<double, 3> start = raws[k].params;
+      bool have_start = raws[k].converged;
+      const auto& seed = seeds[w.phase == Phase::charging ? 0 : 1];
+      const auto x = s.x(w), y = s.y(w);
+      if (!have_start && seed && !x.empty()) {
+        // The amplitude through the first sample: the first step puts it right (it is linear).
+        start = {seed->log_tau, seed->vinf_V,
+                 (y[0] - seed->vinf_V) * std::exp(x[0] * std::exp(-seed->log_tau))};
+        have_start = std::isfinite(start[2]);
+      }
+      raws[k] = detail::solve_segment(x, y, st, have_start ? &start : nullptr);
     }
   };
   if (step == 1) {
@@ -95,6 +111,26 @@ double residual_sigma_V(const SegmentSamples& s, const std::vector<RawSegment>& 
   if (r.size() <= params) return 0.0;
   const double dof = static_cast<double>(r.size()) / static_cast<double>(r.size() - params);
   return mad_sigma(r) * std::sqrt(dof);
+}
+
+double median(std::vector<double> v);
+
+// Each phase's median (ln tau, Vinf) over the segments of the first pass that converged: a
+// start for the rest within the spread of tau and Vinf over the record, so each needs no
+// guess of its own and fewer steps. None for a phase with under 8 such segments.
+PhaseSeeds phase_seeds(const SegmentSamples& s, const std::vector<RawSegment>& raws) {
+  PhaseSeeds seeds;
+  for (const Phase phase : {Phase::charging, Phase::discharging}) {
+    std::vector<double> log_taus, vinfs;
+    for (std::size_t k = 0; k < raws.size(); ++k) {
+      if (!raws[k].converged || s.windows[k].phase != phase) continue;
+      log_taus.push_back(raws[k].params[0]);
+      vinfs.push_back(raws[k].params[1]);
+    }
+    if (log_taus.size() < 8) continue;
+    seeds[phase == Phase::charging ? 0 : 1] = PhaseSeed{median(log_taus), median(vinfs)};
+  }
+  return seeds;
 }
 
 double median(std::vector<double> v) {
@@ -238,7 +274,7 @@ SegmentFitResult fit_segments(const TimeBase& time, std::span<const double> cap_
     fit_each(s, spread(s.windows.size(), 256), st, raws, o.threads);
     st.sigma_V = std::max(r.sigma_floor_V, residual_sigma_V(s, raws));
     st.covariance = true;
-    fit_each(s, all, st, raws, o.threads);
+    fit_each(s, all, st, raws, o.threads, phase_seeds(s, raws));
   }
   r.noise_sigma_V = st.sigma_V;
 

@@ -373,6 +373,13 @@ RawSegment solve_segment(std::span<const double> x, std::span<const double> y,
   out.params = start ? *start : initial_guess(x, y);
   if (st.closed_form) {
     if (std::optional<RawSegment> fast = closed_segment(x, y, st, out.params)) return *fast;
+    // A start from elsewhere (a phase's seed) that does not end in a clean minimum: the
+    // segment's own guess next, before the general solver from the start as given.
+    if (start) {
+      if (std::optional<RawSegment> fast = closed_segment(x, y, st, initial_guess(x, y))) {
+        return *fast;
+      }
+    }
   }
 
   ExponentialSegmentCost cost(x, y, st.sigma_V, st.loss);  // declared first: outlives problem
