@@ -7,6 +7,7 @@
 #include <cmath>
 #include <cstdint>
 #include <optional>
+#include <thread>
 #include <vector>
 
 namespace benchtau::csv {
@@ -61,23 +62,54 @@ std::array<double, 2> ranks(std::span<const double> t, std::size_t lo, std::size
   const double low = sample[at(lo) > margin ? at(lo) - margin : 0];
   const double high = sample[std::min(samples - 1, at(hi) + margin)];
 
-  std::size_t below = 0, at_low = 0, at_high = 0;
-  std::vector<double> between;
-  const std::size_t cap = steps / 8;
-  for (std::size_t i = 0; i < steps; ++i) {
-    const double s = step(t, i);
-    if (s < low) {
-      ++below;
-    } else if (s == low) {
-      ++at_low;
-    } else if (s == high) {
-      ++at_high;
-    } else if (s < high) {
-      if (between.size() == cap) return {kth_by_radix(t, lo), kth_by_radix(t, hi)};
-      between.push_back(s);
+  // The counting pass, over two halves of the steps side by side on a long record.
+  struct Tally {
+    std::size_t below = 0, at_low = 0, at_high = 0;
+    std::vector<double> between;
+    bool overflow = false;
+  };
+  const std::size_t cap = steps / 16;  // a half's share of steps / 8
+  const auto count = [&](std::size_t begin, std::size_t end, Tally& y) {
+    for (std::size_t i = begin; i < end; ++i) {
+      const double s = step(t, i);
+      if (s < low) {
+        ++y.below;
+      } else if (s == low) {
+        ++y.at_low;
+      } else if (s == high) {
+        ++y.at_high;
+      } else if (s < high) {
+        if (y.between.size() == cap) {
+          y.overflow = true;
+          return;
+        }
+        y.between.push_back(s);
+      }
     }
+  };
+  Tally first, second;
+  if (std::thread::hardware_concurrency() > 1) {
+    std::jthread other([&] { count(steps / 2, steps, second); });
+    count(0, steps / 2, first);
+  } else {
+    count(0, steps / 2, first);
+    count(steps / 2, steps, second);
   }
-  std::sort(between.begin(), between.end());
+  if (first.overflow || second.overflow) return {kth_by_radix(t, lo), kth_by_radix(t, hi)};
+  const std::size_t below = first.below + second.below, at_low = first.at_low + second.at_low,
+                    at_high = first.at_high + second.at_high;
+  std::vector<double>& between = first.between;
+  between.insert(between.end(), second.between.begin(), second.between.end());
+  // Only ranks lo and lo + 1 are wanted: select them, no sort.
+  const std::size_t inside_lo = lo - std::min(lo, below + at_low);
+  if (lo >= below + at_low && inside_lo < between.size()) {
+    const auto nth = between.begin() + static_cast<std::ptrdiff_t>(inside_lo);
+    std::nth_element(between.begin(), nth, between.end());
+    if (nth + 1 != between.end()) std::iter_swap(nth + 1, std::min_element(nth + 1, between.end()));
+  } else if (hi >= below + at_low && hi - below - at_low < between.size()) {
+    // Rank lo is at low, so hi is the smallest of those between.
+    std::iter_swap(between.begin(), std::min_element(between.begin(), between.end()));
+  }
   // The step of a rank, if the pass pinned it down.
   const auto pick = [&](std::size_t rank) -> std::optional<double> {
     if (rank < below) return std::nullopt;

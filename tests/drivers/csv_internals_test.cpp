@@ -211,6 +211,20 @@ TEST_CASE("csv internals: the median step is exact, small and large, with repeat
     CHECK(csv::median_step(t) == 2.0);
     CHECK(same_bits(csv::median_step(t), reference_median(steps_of(t))));
   }
+  SECTION("the lower middle rank on a repeated step, the upper one on the smallest above it") {
+    // Half the steps exactly 1, the other half larger, shuffled: the median is between the
+    // last 1 and the smallest of the rest.
+    const std::size_t steps = 200000;
+    std::vector<double> gaps(steps, 1.0);
+    // Multiples of 1/1024, so that every time and every step is exact.
+    std::uniform_int_distribution<int> above(1536, 2560);
+    for (std::size_t i = steps / 2; i < steps; ++i) gaps[i] = above(rng) / 1024.0;
+    std::shuffle(gaps.begin(), gaps.end(), rng);
+    std::vector<double> t(steps + 1, 0.0);
+    for (std::size_t i = 0; i < steps; ++i) t[i + 1] = t[i] + gaps[i];
+    CHECK(same_bits(csv::median_step(t), reference_median(steps_of(t))));
+    CHECK(csv::median_step(t) == 0.5 * (1.0 + 1536 / 1024.0));
+  }
   SECTION("a step distribution the sample misjudges falls back to the radix selection") {
     // Every sixth step is large, at indices the evenly spaced sample never visits,
     // so the sample puts the median too low.
