@@ -5,8 +5,10 @@
 
 #include "src/core/log_kernel.h"
 
-// GCC's clones for x86-64, picked when the program loads.
-#if defined(__GNUC__) && !defined(__clang__) && defined(__x86_64__)
+// GCC's clones for x86-64, picked when the program loads. The sanitizer build keeps one
+// plain copy, as segment_normal.cpp's does.
+#if defined(__GNUC__) && !defined(__clang__) && defined(__x86_64__) && \
+    !defined(__SANITIZE_ADDRESS__)
 #define BENCHTAU_WIDE_VECTORS __attribute__((target_clones("avx2", "default")))
 #else
 #define BENCHTAU_WIDE_VECTORS
