@@ -113,11 +113,16 @@ double residual_sigma_V(const SegmentSamples& s, const std::vector<RawSegment>& 
   return mad_sigma(r) * std::sqrt(dof);
 }
 
-double median(std::vector<double> v);
+double median(std::vector<double> v) {
+  if (v.empty()) return std::nan("");
+  const auto mid = v.begin() + static_cast<std::ptrdiff_t>(v.size() / 2);
+  std::nth_element(v.begin(), mid, v.end());
+  return *mid;
+}
 
 // Each phase's median (ln tau, Vinf) over the segments of the first pass that converged: a
-// start for the rest within the spread of tau and Vinf over the record, so each needs no
-// guess of its own and fewer steps. None for a phase with under 8 such segments.
+// start for the rest within the spread of tau and Vinf over the record, so that none needs a
+// guess of its own (two passes over its samples). None for a phase with under 8 such segments.
 PhaseSeeds phase_seeds(const SegmentSamples& s, const std::vector<RawSegment>& raws) {
   PhaseSeeds seeds;
   for (const Phase phase : {Phase::charging, Phase::discharging}) {
@@ -131,13 +136,6 @@ PhaseSeeds phase_seeds(const SegmentSamples& s, const std::vector<RawSegment>& r
     seeds[phase == Phase::charging ? 0 : 1] = PhaseSeed{median(log_taus), median(vinfs)};
   }
   return seeds;
-}
-
-double median(std::vector<double> v) {
-  if (v.empty()) return std::nan("");
-  const auto mid = v.begin() + static_cast<std::ptrdiff_t>(v.size() / 2);
-  std::nth_element(v.begin(), mid, v.end());
-  return *mid;
 }
 
 // For the closed-form joint solver, a start within second order of its minimum (so that it

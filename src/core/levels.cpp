@@ -114,7 +114,8 @@ std::pair<std::pair<double, std::size_t>, std::pair<double, std::size_t>> flat_r
   FlatRuns a{lo, mid}, b{hi, mid};
   // Most samples are at neither extreme and close no run: for them only the
   // crossing flags move, without a branch.
-  const bool a_below = lo<mid, a_above = lo> mid, b_below = hi<mid, b_above = hi> mid;
+  const bool a_below = (lo < mid), a_above = (lo > mid);
+  const bool b_below = (hi < mid), b_above = (hi > mid);
   for (double v : values) {
     if (v != lo && v != hi && a.run == 0 && b.run == 0) {
       a.crossed |= (a_below & (v > mid)) | (a_above & (v < mid));
