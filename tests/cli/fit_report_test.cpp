@@ -9,6 +9,7 @@
 #include "src/cli/json_writer.h"
 #include "src/cli/measure_report.h"
 #include "src/core/design_file.h"
+#include "tests/cli/fitted_part_support.h"
 
 namespace {
 
@@ -18,6 +19,7 @@ using benchtau::cli::fit_table;
 using benchtau::cli::FitReport;
 using benchtau::cli::JsonWriter;
 using benchtau::cli::summary_json;
+using benchtau::test::part;
 
 const double kNaN = std::nan("");
 
@@ -53,21 +55,6 @@ BoardCapture board(const Capture& c, std::size_t cycles, double period_s) {
   b.measurement.summary.cycles = cycles;
   b.measurement.summary.period_s.mean = period_s;
   return b;
-}
-
-FittedPart part(const char* ref, const char* unit, double nominal, double tolerance, double fitted,
-                double sigma, double data_share, PartStatus status) {
-  FittedPart p;
-  p.ref = ref;
-  p.unit = unit;
-  p.nominal = nominal;
-  p.tolerance = tolerance;
-  p.fitted = fitted;
-  p.sigma = sigma;
-  p.deviation = fitted / nominal - 1.0;
-  p.data_share = data_share;
-  p.status = status;
-  return p;
 }
 
 Suspect suspect(const char* ref, SuspectKind kind, double p, const char* sentence,

@@ -2,6 +2,7 @@
 #include <catch2/catch.hpp>
 
 #include "src/cli/watch_fit.h"
+#include "tests/cli/fitted_part_support.h"
 
 using namespace benchtau;
 
@@ -9,21 +10,8 @@ TEST_CASE("watch --design: each part with its sigma and mark, then the verdict")
   Diagnosis d;
   d.verdict = Verdict::fail;
   d.reason = "C1 has lost about 38 % of its capacitance";
-  FittedPart r;
-  r.ref = "R1";
-  r.unit = "ohm";
-  r.nominal = 10e3;
-  r.fitted = 10.02e3;
-  r.sigma = 50.0;
-  r.status = PartStatus::in_spec;
-  FittedPart c;
-  c.ref = "C1";
-  c.unit = "F";
-  c.nominal = 100e-9;
-  c.fitted = 62e-9;
-  c.sigma = 0.29e-9;
-  c.status = PartStatus::low;
-  d.parts = {r, c};
+  d.parts = {test::part("R1", "ohm", 10e3, 0.01, 10.02e3, 50.0, 0.5, PartStatus::in_spec),
+             test::part("C1", "F", 100e-9, 0.2, 62e-9, 0.29e-9, 0.9, PartStatus::low)};
   CHECK(cli::live_fit_lines(d) ==
         std::vector<std::string>{"  fit         R1 10.0 kohm +/- 50 ohm (design 10.0 kohm)",
                                  "              C1 62.0 nF +/- 290 pF (design 100 nF)  LOW",

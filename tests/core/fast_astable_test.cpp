@@ -15,6 +15,15 @@ double log_between(Xoshiro256& rng, double lo, double hi) {
   return std::exp(between(rng, std::log(lo), std::log(hi)));
 }
 
+// The textbook board: R1 10 k, R2 47 k, C 100 n, the chip's typical figures.
+Circuit classic() {
+  Circuit c;
+  c.v.upper_ohm = 10e3;
+  c.v.lower_ohm = 47e3;
+  c.v.cap_F = 100e-9;
+  return c;
+}
+
 }  // namespace
 
 TEST_CASE("the decoupled two-resistor fast path matches predict_cycle to 1e-12") {
@@ -62,10 +71,7 @@ TEST_CASE("the decoupled two-resistor fast path matches predict_cycle to 1e-12")
 }
 
 TEST_CASE("the fast path declines every other wiring") {
-  Circuit c;
-  c.v.upper_ohm = 10e3;
-  c.v.lower_ohm = 47e3;
-  c.v.cap_F = 100e-9;
+  const Circuit c = classic();
   REQUIRE(fast_astable_outputs(c).has_value());
   Circuit k = c;
   k.control = ControlWiring::load_to_ground;
@@ -128,10 +134,7 @@ TEST_CASE("the batch path gives the scalar fast path's outputs, lane by lane") {
 }
 
 TEST_CASE("a batch lane with a long delay or a stopped circuit is declined, not guessed") {
-  Circuit c;
-  c.v.upper_ohm = 10e3;
-  c.v.lower_ohm = 47e3;
-  c.v.cap_F = 100e-9;
+  const Circuit c = classic();
   AstableBatch batch;
   AstableBatchOutputs out;
   REQUIRE(load_lane(c, batch, 0));
