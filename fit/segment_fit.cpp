@@ -47,9 +47,13 @@ void fit_each(const SegmentSamples& s, std::span<const std::size_t> which, const
       const auto& seed = seeds[w.phase == Phase::charging ? 0 : 1];
       const auto x = s.x(w), y = s.y(w);
       if (!have_start && seed && !x.empty()) {
-        // The amplitude through the first sample: the first step puts it right (it is linear).
-        start = {seed->log_tau, seed->vinf_V,
-                 (y[0] - seed->vinf_V) * std::exp(x[0] * std::exp(-seed->log_tau))};
+        // The amplitude through the first few samples: one sample's noise alone would leave
+        // the start a hundred or so in chi-square off, and cost the solver a pass or two.
+        const double inv_tau = std::exp(-seed->log_tau);
+        const std::size_t m = std::min<std::size_t>(x.size(), 16);
+        double amp = 0.0;
+        for (std::size_t i = 0; i < m; ++i) amp += (y[i] - seed->vinf_V) * std::exp(x[i] * inv_tau);
+        start = {seed->log_tau, seed->vinf_V, amp / static_cast<double>(m)};
         have_start = std::isfinite(start[2]);
       }
       raws[k] = detail::solve_segment(x, y, st, have_start ? &start : nullptr);
