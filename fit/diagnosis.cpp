@@ -70,9 +70,17 @@ Scored score(const CircuitProblem& problem, const Explanation& e) {
 std::vector<Scored> score_all(const CircuitProblem& problem, const std::vector<Explanation>& es,
                               int threads) {
   std::vector<Scored> out(es.size());
+  // A fault path costs some thirty fits, any other explanation one: those go first, so that
+  // the single fits fill in around them instead of leaving one thread idle at the end.
+  std::vector<std::size_t> order(es.size());
+  for (std::size_t i = 0; i < order.size(); ++i) order[i] = i;
+  std::stable_partition(order.begin(), order.end(),
+                        [&](std::size_t i) { return es[i].spec.fault != FaultPath::none; });
   std::atomic<std::size_t> next{0};
   auto work = [&] {
-    for (std::size_t i = next++; i < es.size(); i = next++) out[i] = score(problem, es[i]);
+    for (std::size_t j = next++; j < es.size(); j = next++) {
+      out[order[j]] = score(problem, es[order[j]]);
+    }
   };
   std::vector<std::jthread> pool;
   for (int t = 1; t < std::max(1, threads); ++t) pool.emplace_back(work);
