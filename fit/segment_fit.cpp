@@ -47,13 +47,19 @@ void fit_each(const SegmentSamples& s, std::span<const std::size_t> which, const
       const auto& seed = seeds[w.phase == Phase::charging ? 0 : 1];
       const auto x = s.x(w), y = s.y(w);
       if (!have_start && seed && !x.empty()) {
-        // The amplitude through the first few samples: one sample's noise alone would leave
-        // the start a hundred or so in chi-square off, and cost the solver a pass or two.
+        // The amplitude by least squares over the first few samples, tau and Vinf held: one
+        // sample's noise alone would leave the start a hundred or so in chi-square off, and
+        // cost the solver a pass or two. Weighted by the curve, so a segment only a few
+        // samples per tau long leans on its first samples, not on its amplified tail.
         const double inv_tau = std::exp(-seed->log_tau);
         const std::size_t m = std::min<std::size_t>(x.size(), 16);
-        double amp = 0.0;
-        for (std::size_t i = 0; i < m; ++i) amp += (y[i] - seed->vinf_V) * std::exp(x[i] * inv_tau);
-        start = {seed->log_tau, seed->vinf_V, amp / static_cast<double>(m)};
+        double ye = 0.0, ee = 0.0;
+        for (std::size_t i = 0; i < m; ++i) {
+          const double e = std::exp(-x[i] * inv_tau);
+          ye += (y[i] - seed->vinf_V) * e;
+          ee += e * e;
+        }
+        start = {seed->log_tau, seed->vinf_V, ye / ee};
         have_start = std::isfinite(start[2]);
       }
       raws[k] = detail::solve_segment(x, y, st, have_start ? &start : nullptr);
