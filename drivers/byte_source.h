@@ -18,7 +18,7 @@ enum class ReadStatus {
 struct ReadResult {
   ReadStatus status = ReadStatus::timeout;
   std::size_t bytes = 0;  // with data only
-  std::string detail;     // with closed: why, for the user ("end of file", "Input/output error")
+  std::string detail;  // with closed: why, for the user ("the port hung up", "Permission denied")
 };
 
 class ByteSource {

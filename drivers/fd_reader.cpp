@@ -21,9 +21,10 @@ ReadResult read_fd(int fd, std::span<std::uint8_t> buffer, int timeout_ms) {
   // POLLHUP and POLLERR fall through: read() tells whether bytes remain.
   const ssize_t n = ::read(fd, buffer.data(), buffer.size());
   if (n > 0) return {ReadStatus::data, static_cast<std::size_t>(n), {}};
-  if (n == 0) return {ReadStatus::closed, 0, "end of file"};
+  if (n == 0) return {ReadStatus::closed, 0, "the port hung up"};
   if (errno == EINTR) return {ReadStatus::interrupted, 0, {}};
   if (errno == EAGAIN || errno == EWOULDBLOCK) return {ReadStatus::timeout, 0, {}};
+  if (errno == EIO) return {ReadStatus::closed, 0, "the port hung up"};
   return {ReadStatus::closed, 0, std::strerror(errno)};
 }
 

@@ -147,7 +147,7 @@ TEST_CASE("a port that goes away and comes back on the same path is recorded acr
     const std::lock_guard lock(events_mutex);
     REQUIRE(events.size() == 2);
     CHECK(events[0] == link.string() +
-                           ": disconnected (end of file); the record is kept, waiting for the "
+                           ": disconnected (the port hung up); the record is kept, waiting for the "
                            "port to come back");
     CHECK(events[1] == link.string() + ": connected again");
   }

@@ -171,10 +171,11 @@ TEST_CASE("cli: capture rides out an unplugged board and closes cleanly on SIGTE
   REQUIRE(wait_for([&] { return slurp(err).find("disconnected") != std::string::npos; }));
   ::kill(child, SIGTERM);
   CHECK(wait_child(child) == 0);
-  CHECK(slurp(err) == "benchtau: recording " + port + " to " + rec.string() +
-                          "; Ctrl-C stops\nbenchtau: " + port +
-                          ": disconnected (end of file); the record is kept, waiting for the port "
-                          "to come back\n");
+  CHECK(slurp(err) ==
+        "benchtau: recording " + port + " to " + rec.string() +
+            "; Ctrl-C stops\nbenchtau: " + port +
+            ": disconnected (the port hung up); the record is kept, waiting for the port "
+            "to come back\n");
   const auto record = lines_of(slurp(rec));
   REQUIRE(record.size() == 1 + 500 + 1);
   CHECK(record[1] == "0,0,4.8828125");
