@@ -159,6 +159,7 @@ def main():
     peer = [sys.executable, os.path.join(HERE, "fit_peer.py")]
 
     table = []
+    warmed = False
     for rows in args.rows:
         path = os.path.join(data_dir, f"fit_astable_{rows}.csv")
         if not os.path.exists(path):
@@ -166,7 +167,7 @@ def main():
             generate(path, rows)
         size = os.path.getsize(path)
         subprocess.run(["cat", path], check=True, stdout=subprocess.DEVNULL)  # warm the cache
-        warm_memory(args.warm_gib)  # and memory the host has backed
+        warmed = warm_memory(args.warm_gib)  # and memory the host has backed
         pr = best_of(args.runs, lambda: timed(peer + [path]), lambda r: float(r["values"]["seconds"]))
         sides = [("pipeline", [program, path])]
         if command:
@@ -203,7 +204,7 @@ def main():
           "per segment (analytic Jacobian); benchtau timed as a whole process")
     if not command:
         print("(`benchtau fit` not found in this build: the pipeline program stands for it)")
-    if args.warm_gib > 0:
+    if warmed:
         print(f"memory warmed first: {args.warm_gib:g} GiB touched once and freed "
               "(tests/bench/warm_memory.py says why)")
     load = os.getloadavg()[0]

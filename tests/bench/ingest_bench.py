@@ -134,7 +134,7 @@ def main():
     print(f"  {args.rows:,} rows x 3 columns, {mb(size):.1f} MB ({size:,} bytes)")
 
     subprocess.run(["cat", path], check=True, stdout=subprocess.DEVNULL)  # warm the page cache
-    warm_memory(args.warm_gib)  # and memory the host has backed
+    warmed = warm_memory(args.warm_gib)  # and memory the host has backed
     bt = best_of(args.runs, lambda: run_benchtau(program, path, args.threads))
     wc = best_of(args.runs, lambda: run_wc(path))
     try:
@@ -175,7 +175,7 @@ def main():
           f"on channel {bt.get('edge_channel', '-')}")
     if pd:
         print(f"CPU time per byte, pandas / benchtau: {pd['cpu_seconds'] / bt['cpu_seconds']:.1f}x")
-    if args.warm_gib > 0:
+    if warmed:
         print(f"memory warmed first: {args.warm_gib:g} GiB touched once and freed "
               "(tests/bench/warm_memory.py says why)")
     load = os.getloadavg()[0]
